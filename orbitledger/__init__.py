@@ -1,0 +1,22 @@
+"""orbitledger: reproducible orbit reports.
+
+Edit orbit cases in a notebook, compute with a validated kernel, and build versioned HTML/PDF
+calculation records that carry every input and verify from the file alone.
+"""
+
+from __future__ import annotations
+
+from ._version import __version__
+
+__all__ = ["__version__", "open_case"]
+
+
+def open_case(path):
+    """Load the case file at ``path``, or write the starter case there first if it is missing.
+
+    Returns a :class:`orbitledger.case.Case` bound to its file; ``case.editor()`` opens the
+    editing widget. Raises :class:`orbitledger.case.CaseError` for a file that does not validate.
+    """
+    from .case import open_case as _open_case
+
+    return _open_case(path)

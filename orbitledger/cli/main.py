@@ -1,0 +1,73 @@
+"""Entry point of the ``orbitledger`` command.
+
+Exit status: 0 on success, 1 for a failed check (``verify``), 2 for bad input or usage. A
+user's mistake prints one line naming the file, the field, the value and the reason, never a
+traceback. Each verbs module defines ``register(subparsers)``, adding its verbs with
+``set_defaults(run=function)``; ``run(args)`` returns the exit status.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+from collections.abc import Sequence
+
+from .._version import __version__
+from ..kernel.errors import InputError
+
+# The verbs modules, in the order their verbs appear in ``--help``.
+VERB_MODULES = [
+    "orbitledger.cli.case_verbs",
+]
+
+
+class UsageError(Exception):
+    """Wrong use of the command line (exit 2)."""
+
+
+class CheckFailed(Exception):
+    """A check that ran and did not hold (exit 1); the message says what differed."""
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message: str) -> None:  # argparse's own errors: one line, exit 2
+        self.print_usage(sys.stderr)
+        self.exit(2, f"{self.prog}: error: {message}\n")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(
+        prog="orbitledger",
+        description="Reproducible orbit reports: cases, computations and calculation records.",
+    )
+    parser.add_argument("--version", action="version", version=f"orbitledger {__version__}")
+    subparsers = parser.add_subparsers(dest="verb", metavar="VERB", parser_class=_Parser)
+    for name in VERB_MODULES:
+        importlib.import_module(name).register(subparsers)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not getattr(args, "run", None):
+        parser.print_help()
+        return 2
+    try:
+        return int(args.run(args) or 0)
+    except (InputError, UsageError) as err:
+        print(f"orbitledger {args.verb}: {err}", file=sys.stderr)
+        return 2
+    except CheckFailed as err:
+        print(f"orbitledger {args.verb}: {err}", file=sys.stderr)
+        return 1
+    except KeyboardInterrupt:
+        print(f"orbitledger {args.verb}: interrupted", file=sys.stderr)
+        return 130
+    except BrokenPipeError:
+        return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,1 @@
+"""Exchange with other flight-dynamics tools: TLE/SGP4, CCSDS OPM and OEM, CSV."""

@@ -1,0 +1,1 @@
+"""Bokeh figure builders shared by the editor widgets and the records."""

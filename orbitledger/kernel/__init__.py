@@ -1,0 +1,22 @@
+"""The compute kernel: pure functions over numpy arrays (km, km/s, s, radians).
+
+No I/O, no Jupyter, no plotting; nothing here imports the case model, figures, widgets or
+reporting. Every public function states its units, its valid range and its published source.
+"""
+
+from .constants import (
+    AU_KM,
+    BODIES,
+    EARTH,
+    G0_M_S2,
+    MARS,
+    MOON,
+    SIDEREAL_DAY_S,
+    SUN,
+    TROPICAL_YEAR_DAYS,
+    Body,
+)
+from .elements import Elements
+from .errors import InputError
+
+# Each concept's module adds its public names below this line.

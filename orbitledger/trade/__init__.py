@@ -1,0 +1,1 @@
+"""Trade studies: parameter sweeps, Monte Carlo dispersions, candidate tables."""

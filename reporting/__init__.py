@@ -1,0 +1,1 @@
+"""Headless build of calculation records, the ledger, verification."""

@@ -1,0 +1,1 @@
+"""Jinja templates and CSS of the calculation records (package data)."""

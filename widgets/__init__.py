@@ -1,0 +1,1 @@
+"""Notebook widgets to edit orbit cases live (see the widgets issue)."""
