@@ -20,3 +20,4 @@ from .elements import Elements
 from .errors import InputError
 
 # Each concept's module adds its public names below this line.
+from .j2 import j2_secular_rates, sun_synchronous_inclination_deg
