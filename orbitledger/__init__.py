@@ -7,8 +7,9 @@ calculation records that carry every input and verify from the file alone.
 from __future__ import annotations
 
 from ._version import __version__
+from .study import result
 
-__all__ = ["__version__", "open_case"]
+__all__ = ["__version__", "open_case", "result"]
 
 
 def open_case(path):
