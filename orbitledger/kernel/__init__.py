@@ -21,3 +21,12 @@ from .errors import InputError
 
 # Each concept's module adds its public names below this line.
 from .j2 import j2_secular_rates, sun_synchronous_inclination_deg
+from .transfers import (
+    bielliptic,
+    combined_plane_change,
+    hohmann,
+    hohmann_elliptic,
+    phasing,
+    plane_change_dv_km_s,
+)
+from .lambert import lambert, solve_lambert

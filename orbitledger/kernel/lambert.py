@@ -1,0 +1,353 @@
+"""Lambert's problem: the conic from r1 to r2 in a given time, zero and multi-revolution, vectorised.
+
+Method: Izzo, D. (2015), "Revisiting Lambert's problem", Celestial Mechanics and Dynamical
+Astronomy 121(1), 1-15. The problem is reduced to one non-dimensional unknown x (Eqs. 1-9,
+lambda = +-sqrt(1 - c/s), T = sqrt(2 mu / s^3) tof); the time of flight T(x) is evaluated by
+Lancaster-Blanchard's form (Eq. 18), by Lagrange's form (Eq. 9) for 0.2 > |x - 1| > 0.01 and
+by Battin's hypergeometric series (Eq. 20) within 0.01 of the parabola; Householder's
+third-order iteration (Eq. 22 derivatives) from the paper's initial guesses (Eqs. 30-31) finds
+x. Everything runs on whole arrays: a fixed small number of iterations (at most 12; typically
+3-4 are needed) with convergence masks, never a Python loop per problem.
+
+Conventions
+- ``prograde=True``: the transfer's angular momentum has a positive z component (counter-
+  clockwise seen from +z); ``prograde=False``: negative z. The transfer angle follows from it.
+- Multi-revolution (``revolutions`` = N >= 1) problems have two solutions when the time of flight
+  exceeds the minimum T_min(N): ``branch="low"`` is the LOW-ENERGY one (smaller semi-major axis),
+  ``branch="high"`` the HIGH-ENERGY one (larger semi-major axis), as in the low/high-energy
+  naming of Vallado 4th ed., Sec. 7.6 (Algorithm 58). For N = 0 there is one solution and the
+  branch is ignored.
+- Near a 180-deg transfer the plane of r1 and r2 is ill-defined (r1 x r2 -> 0): within
+  ``PLANE_TOLERANCE`` (|sin(transfer angle)| < 1e-9) the solver picks the plane that contains
+  r1 and whose normal is closest to +z (to +x if r1 lies along z), solves in it, flags the
+  problem in ``LambertSolution.plane_ill_defined`` and ``lambert`` issues a
+  ``LambertPlaneWarning``. Any plane through the line of r1 and r2 is then a valid answer; the
+  caller must state the intended one (e.g. by nudging r2 off the line).
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import ArrayLike
+
+from .constants import EARTH
+from .errors import InputError
+
+__all__ = [
+    "LambertPlaneWarning",
+    "LambertSolution",
+    "PLANE_TOLERANCE",
+    "lambert",
+    "solve_lambert",
+]
+
+PLANE_TOLERANCE = 1e-9  # |sin(transfer angle)| below which the transfer plane is ill-defined
+_MAX_ITERATIONS = 12
+_X_TOL = 1e-13
+
+
+class LambertPlaneWarning(UserWarning):
+    """A transfer angle so close to 0 or 180 deg that r1 and r2 do not fix the plane."""
+
+
+@dataclass(frozen=True)
+class LambertSolution:
+    """Velocities at r1 and r2 (km/s, (..., 3)), the conic's semi-major axis (km, negative for a
+    hyperbola), Izzo's x, the transfer angle (rad, in [0, 2 pi)), and the masks for problems
+    with no solution (NaN velocities) and for an ill-defined plane."""
+
+    v1_km_s: np.ndarray
+    v2_km_s: np.ndarray
+    a_km: np.ndarray
+    x: np.ndarray
+    transfer_angle_rad: np.ndarray
+    infeasible: np.ndarray
+    plane_ill_defined: np.ndarray
+    tof_min_s: np.ndarray | None
+
+
+def _hyp2f1_series(z: np.ndarray) -> np.ndarray:
+    """2F1(3, 1; 5/2; z) by its power series, |z| small (Izzo 2015, Eq. 20); 25 terms."""
+    term = np.ones_like(z)
+    total = np.ones_like(z)
+    for j in range(25):
+        term = term * (3.0 + j) * (1.0 + j) / (2.5 + j) * z / (j + 1.0)
+        total = total + term
+    return total
+
+
+def _tof(x: np.ndarray, lam: np.ndarray, n_rev: int) -> np.ndarray:
+    """Non-dimensional time of flight T(x) (Izzo 2015, Eqs. 9, 18, 20)."""
+    lam2 = lam * lam
+    e = x * x - 1.0
+    rho = np.abs(e)
+    dist = np.abs(x - 1.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        z = np.sqrt(1.0 + lam2 * e)
+        # Lancaster-Blanchard (Eq. 18)
+        y = np.sqrt(rho)
+        g = x * z - lam * e
+        d_ell = n_rev * math.pi + np.arccos(np.clip(g, -1.0, 1.0))
+        f = y * (z - lam * x)
+        d_hyp = np.log(np.maximum(f + g, 1e-300))
+        d = np.where(e < 0.0, d_ell, d_hyp)
+        t_lancaster = (x - lam * z - d / y) / e
+        # Lagrange (Eq. 9) where Lancaster loses digits, 0.01 < |x - 1| < 0.2
+        a = 1.0 / (1.0 - x * x)
+        ell = a > 0.0
+        sa = np.sqrt(np.abs(a))
+        alfa_e = 2.0 * np.arccos(np.clip(x, -1.0, 1.0))
+        beta_e = 2.0 * np.arcsin(np.clip(np.sqrt(np.abs(lam2 / a)), 0.0, 1.0))
+        alfa_h = 2.0 * np.arccosh(np.maximum(x, 1.0))
+        beta_h = 2.0 * np.arcsinh(np.sqrt(np.abs(lam2 / a)))
+        beta_e = np.where(lam < 0.0, -beta_e, beta_e)
+        beta_h = np.where(lam < 0.0, -beta_h, beta_h)
+        t_ell = (
+            a
+            * sa
+            * ((alfa_e - np.sin(alfa_e)) - (beta_e - np.sin(beta_e)) + 2.0 * math.pi * n_rev)
+            / 2.0
+        )
+        t_hyp = -a * sa * ((beta_h - np.sinh(beta_h)) - (alfa_h - np.sinh(alfa_h))) / 2.0
+        t_lagrange = np.where(ell, t_ell, t_hyp)
+        # Battin's series (Eq. 20) near the parabola, |x - 1| < 0.01
+        eta = z - lam * x
+        s1 = 0.5 * (1.0 - lam - x * eta)
+        q = 4.0 / 3.0 * _hyp2f1_series(s1)
+        t_battin = (eta**3 * q + 4.0 * lam * eta) / 2.0
+        if n_rev:
+            t_battin = t_battin + n_rev * math.pi / rho**1.5
+    out = np.where(dist < 0.2, t_lagrange, t_lancaster)
+    return np.where(dist < 0.01, t_battin, out)
+
+
+def _derivatives(x: np.ndarray, t: np.ndarray, lam: np.ndarray):
+    """dT/dx, d2T/dx2, d3T/dx3 (Izzo 2015, Eq. 22)."""
+    lam2 = lam * lam
+    lam3 = lam2 * lam
+    with np.errstate(invalid="ignore", divide="ignore"):
+        umx2 = 1.0 - x * x
+        y = np.sqrt(1.0 - lam2 * umx2)
+        y2 = y * y
+        y3 = y2 * y
+        dt = (3.0 * t * x - 2.0 + 2.0 * lam3 * x / y) / umx2
+        ddt = (3.0 * t + 5.0 * x * dt + 2.0 * (1.0 - lam2) * lam3 / y3) / umx2
+        dddt = (7.0 * x * ddt + 8.0 * dt - 6.0 * (1.0 - lam2) * lam2 * lam3 * x / (y3 * y2)) / umx2
+    return dt, ddt, dddt
+
+
+def _householder(x0: np.ndarray, t_target: np.ndarray, lam: np.ndarray, n_rev: int) -> np.ndarray:
+    """Solve T(x) = T by Householder's method on arrays, with a convergence mask."""
+    x = x0.copy()
+    active = np.isfinite(x)
+    for _ in range(_MAX_ITERATIONS):
+        if not np.any(active):
+            break
+        t = _tof(x, lam, n_rev)
+        delta = t - t_target
+        dt, ddt, dddt = _derivatives(x, t, lam)
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            step = (
+                delta
+                * (dt * dt - delta * ddt / 2.0)
+                / (dt * (dt * dt - delta * ddt) + dddt * delta * delta / 6.0)
+            )
+        step = np.where(active & np.isfinite(step), step, 0.0)
+        x_new = np.clip(x - step, -1.0 + 1e-15, np.inf)
+        active = active & (np.abs(x_new - x) > _X_TOL)
+        x = x_new
+    return x
+
+
+def _t_min(lam: np.ndarray, n_rev: int) -> tuple[np.ndarray, np.ndarray]:
+    """x and T of the minimum time of flight with N >= 1 revolutions (Halley, Izzo 2015 Sec. 3)."""
+    x = np.zeros_like(lam)
+    t = _tof(x, lam, n_rev)
+    for _ in range(_MAX_ITERATIONS):
+        dt, ddt, dddt = _derivatives(x, t, lam)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            step = dt * ddt / (ddt * ddt - dt * dddt / 2.0)
+        step = np.where(np.isfinite(step), step, 0.0)
+        x = np.clip(x - step, -0.999999, 0.999999)
+        t = _tof(x, lam, n_rev)
+        if np.all(np.abs(step) < 1e-13):
+            break
+    return x, t
+
+
+def _as_vectors(name: str, value: ArrayLike) -> np.ndarray:
+    v = np.asarray(value, dtype=float)
+    if v.shape[-1:] != (3,) or not np.all(np.isfinite(v)):
+        raise InputError(name, value, "must be finite position vectors of shape (..., 3), km")
+    return v
+
+
+def solve_lambert(
+    r1_km: ArrayLike,
+    r2_km: ArrayLike,
+    tof_s: ArrayLike,
+    mu_km3_s2: float = EARTH.mu_km3_s2,
+    prograde: ArrayLike = True,
+    revolutions: int = 0,
+    branch: str = "low",
+) -> LambertSolution:
+    """Solve a batch of Lambert problems; no-solution cells come back NaN and flagged.
+
+    Given r1_km, r2_km (..., 3) and tof_s (...) broadcast together, mu in km^3/s^2, the
+    direction of motion (``prograde``, bool or array), ``revolutions`` N >= 0 (whole
+    revolutions completed before arrival) and ``branch`` ("low"/"high", used for N >= 1;
+    see the module notes). Returns a ``LambertSolution``; for N >= 1 it also carries the
+    minimum time of flight, s, of each problem (``tof_min_s``).
+    """
+    r1 = _as_vectors("r1_km", r1_km)
+    r2 = _as_vectors("r2_km", r2_km)
+    tof = np.asarray(tof_s, dtype=float)
+    if not np.all(np.isfinite(tof)) or np.any(tof <= 0.0):
+        raise InputError("tof_s", tof_s, "must be a finite time of flight > 0 s")
+    mu = float(mu_km3_s2)
+    if not math.isfinite(mu) or mu <= 0.0:
+        raise InputError("mu_km3_s2", mu_km3_s2, "must be a finite gravity parameter > 0")
+    n_rev = int(revolutions)
+    if n_rev != revolutions or n_rev < 0:
+        raise InputError("revolutions", revolutions, "must be a whole number >= 0")
+    if branch not in ("low", "high"):
+        raise InputError("branch", branch, 'must be "low" or "high"')
+    shape = np.broadcast_shapes(r1.shape[:-1], r2.shape[:-1], tof.shape, np.shape(prograde))
+    r1 = np.broadcast_to(r1, shape + (3,))
+    r2 = np.broadcast_to(r2, shape + (3,))
+    tof = np.broadcast_to(tof, shape)
+    pro = np.broadcast_to(np.asarray(prograde, dtype=bool), shape)
+
+    r1n = np.linalg.norm(r1, axis=-1)
+    r2n = np.linalg.norm(r2, axis=-1)
+    if np.any(r1n == 0.0) or np.any(r2n == 0.0):
+        raise InputError("r1_km/r2_km", "0", "a position at the centre of the body")
+    c = np.linalg.norm(r2 - r1, axis=-1)
+    s = 0.5 * (r1n + r2n + c)
+    ir1 = r1 / r1n[..., None]
+    ir2 = r2 / r2n[..., None]
+    h = np.cross(ir1, ir2)
+    hn = np.linalg.norm(h, axis=-1)
+    ill = hn < PLANE_TOLERANCE
+    # Fallback plane: normal closest to +z among those perpendicular to r1 (+x if r1 is along z).
+    ref = np.where(np.abs(ir1[..., 2:3]) > 1.0 - 1e-12, [1.0, 0.0, 0.0], [0.0, 0.0, 1.0])
+    h_fb = ref - np.sum(ref * ir1, axis=-1, keepdims=True) * ir1
+    h_fb = h_fb / np.linalg.norm(h_fb, axis=-1, keepdims=True)
+    ih = np.where(ill[..., None], h_fb, h / np.where(hn > 0.0, hn, 1.0)[..., None])
+    # Transfer "short way" when the plane's normal points the way the motion asks for.
+    sense = np.where(pro, 1.0, -1.0)
+    ih_oriented = np.where((sense * ih[..., 2] < 0.0)[..., None] & ~ill[..., None], -ih, ih)
+    ih_oriented = np.where(ill[..., None], sense[..., None] * ih, ih_oriented)
+    cos_theta = np.clip(np.sum(ir1 * ir2, axis=-1), -1.0, 1.0)
+    # An ill-defined plane with r2 along r1 is taken as a full turn (360 deg), else as 180 deg.
+    long_way = np.where(ill, cos_theta > 0.0, np.sum(h * ih_oriented, axis=-1) < 0.0)
+    lam = np.sqrt(np.clip(1.0 - c / s, 0.0, 1.0))
+    lam = np.where(long_way, -lam, lam)
+    it1 = np.cross(ih_oriented, ir1)
+    it2 = np.cross(ih_oriented, ir2)
+    theta = np.arccos(cos_theta)
+    theta = np.where(long_way, 2.0 * math.pi - theta, theta)
+
+    t_nd = np.sqrt(2.0 * mu / s**3) * tof
+    lam2 = lam * lam
+    lam3 = lam2 * lam
+    tof_min_s = None
+    if n_rev == 0:
+        t00 = np.arccos(lam) + lam * np.sqrt(1.0 - lam2)
+        t1 = 2.0 / 3.0 * (1.0 - lam3)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            x_a = -(t_nd - t00) / (t_nd - t00 + 4.0)
+            x_b = t1 * (t1 - t_nd) / (2.0 / 5.0 * (1.0 - lam2 * lam3) * t_nd) + 1.0
+            x_c = (t_nd / t00) ** (math.log(2.0) / np.log(t1 / t00)) - 1.0
+        x0 = np.where(t_nd >= t00, x_a, np.where(t_nd <= t1, x_b, x_c))
+        x = _householder(x0, t_nd, lam, 0)
+        infeasible = ~np.isfinite(x)
+    else:
+        _, t_min = _t_min(lam, n_rev)
+        tof_min_s = t_min / np.sqrt(2.0 * mu / s**3)
+        infeasible = t_nd < t_min
+        with np.errstate(invalid="ignore", divide="ignore"):
+            tmp = ((n_rev * math.pi + math.pi) / (8.0 * t_nd)) ** (2.0 / 3.0)
+            x_left0 = (tmp - 1.0) / (tmp + 1.0)
+            tmp = ((8.0 * t_nd) / (n_rev * math.pi)) ** (2.0 / 3.0)
+            x_right0 = (tmp - 1.0) / (tmp + 1.0)
+        x_left = _householder(np.where(infeasible, np.nan, x_left0), t_nd, lam, n_rev)
+        x_right = _householder(np.where(infeasible, np.nan, x_right0), t_nd, lam, n_rev)
+        # a = a_min / (1 - x^2): the low-energy solution has the smaller |x|.
+        left_is_low = np.abs(x_left) <= np.abs(x_right)
+        want_low = branch == "low"
+        x = np.where(left_is_low == want_low, x_left, x_right)
+        x = np.where(infeasible, np.nan, x)
+
+    # Velocities from x (Izzo 2015, Algorithm 1, lines 17-27).
+    gamma = np.sqrt(mu * s / 2.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        rho = np.where(c > 0.0, (r1n - r2n) / c, 0.0)
+        sigma = np.sqrt(np.clip(1.0 - rho * rho, 0.0, 1.0))
+        y = np.sqrt(1.0 - lam2 + lam2 * x * x)
+        vr1 = gamma * ((lam * y - x) - rho * (lam * y + x)) / r1n
+        vr2 = -gamma * ((lam * y - x) + rho * (lam * y + x)) / r2n
+        vt = gamma * sigma * (y + lam * x)
+    v1 = vr1[..., None] * ir1 + (vt / r1n)[..., None] * it1
+    v2 = vr2[..., None] * ir2 + (vt / r2n)[..., None] * it2
+    a_min = s / 2.0
+    with np.errstate(divide="ignore"):
+        a = a_min / (1.0 - x * x)
+    return LambertSolution(
+        v1_km_s=v1,
+        v2_km_s=v2,
+        a_km=a,
+        x=x,
+        transfer_angle_rad=theta,
+        infeasible=infeasible,
+        plane_ill_defined=ill,
+        tof_min_s=tof_min_s,
+    )
+
+
+def lambert(
+    r1_km: ArrayLike,
+    r2_km: ArrayLike,
+    tof_s: ArrayLike,
+    mu_km3_s2: float = EARTH.mu_km3_s2,
+    prograde: ArrayLike = True,
+    revolutions: int = 0,
+    branch: str = "low",
+) -> tuple[np.ndarray, np.ndarray]:
+    """Velocities (v1_km_s, v2_km_s), (..., 3), of the conic from r1 to r2 in tof_s.
+
+    Given r1_km, r2_km (..., 3) km and tof_s (...) s (broadcast), mu km^3/s^2, the direction
+    of motion (``prograde``: angular momentum along +z), the number of complete
+    ``revolutions`` N >= 0 and, for N >= 1, the ``branch``: "low" (low energy, smaller
+    semi-major axis) or "high" (high energy). Izzo (2015), CMDA 121(1):1-15, vectorised.
+
+    Raises ``InputError`` when some time of flight is shorter than the minimum with N
+    revolutions (the message gives that minimum); warns with ``LambertPlaneWarning`` when the
+    transfer angle is within 1e-9 (in sine) of 0 or 180 deg, where the plane is ill-defined
+    (see the module notes for the plane chosen).
+    """
+    sol = solve_lambert(r1_km, r2_km, tof_s, mu_km3_s2, prograde, revolutions, branch)
+    if np.any(sol.infeasible):
+        tmin = sol.tof_min_s
+        if tmin is not None:
+            worst = np.unravel_index(np.argmax(np.where(sol.infeasible, tmin, -np.inf)), tmin.shape)
+            tof = np.broadcast_to(np.asarray(tof_s, dtype=float), tmin.shape)
+            raise InputError(
+                "tof_s",
+                float(tof[worst]),
+                f"no {int(revolutions)}-revolution solution: the minimum time of flight with "
+                f"{int(revolutions)} revolution(s) for this geometry is {float(tmin[worst]):.3f} s",
+            )
+        raise InputError("tof_s", tof_s, "the solver found no solution")
+    if np.any(sol.plane_ill_defined):
+        warnings.warn(
+            "transfer angle within 1e-9 (sine) of 0/180 deg: the transfer plane is ill-defined; "
+            "solved in the plane containing r1 with normal closest to +z",
+            LambertPlaneWarning,
+            stacklevel=2,
+        )
+    return sol.v1_km_s, sol.v2_km_s
