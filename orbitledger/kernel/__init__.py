@@ -30,3 +30,14 @@ from .transfers import (
     plane_change_dv_km_s,
 )
 from .lambert import lambert, solve_lambert
+from .design import (
+    CRITICAL_INCLINATION_DEG,
+    frozen_orbit,
+    geosynchronous_radius_km,
+    ltan_drift_h_per_day,
+    molniya_orbit,
+    repeat_ground_track_sma_km,
+    repeat_ground_track_solutions,
+    sun_synchronous_altitude_km,
+    sun_synchronous_repeat,
+)
