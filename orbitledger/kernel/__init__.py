@@ -21,6 +21,18 @@ from .errors import InputError
 
 # Each concept's module adds its public names below this line.
 from .j2 import j2_secular_rates, sun_synchronous_inclination_deg
+from .timescales import TimeScales, parse_utc, time_scales, utc_iso
+from .frames import (
+    TopocentricView,
+    gcrf_to_itrf,
+    gcrf_to_itrf_state,
+    geodetic_from_itrf,
+    itrf_from_geodetic,
+    itrf_to_gcrf,
+    itrf_to_gcrf_state,
+    topocentric_view,
+)
+from .sun import sun_position_gcrf_km
 from .transfers import (
     bielliptic,
     combined_plane_change,

@@ -1,0 +1,240 @@
+"""Time scales UTC, TAI, TT and UT1 from ISO 8601 epochs, as two-part Julian dates (via ERFA).
+
+Every conversion is an ERFA routine (the IAU SOFA library; pyerfa): ``dtf2d`` parses a UTC
+calendar date (leap-second days included), ``utctai``/``taiutc`` apply the leap-second table
+of ``dat``, ``taitt`` adds the fixed TT - TAI = 32.184 s, and ``utcut1`` adds the user's
+dUT1 = UT1 - UTC (from IERS Bulletin A or B; |dUT1| < 0.9 s by the definition of UTC).
+
+Two-part Julian dates keep sub-microsecond resolution: the first part holds the day, the
+second part the fraction, and offsets in SI seconds are added to the second part in TAI (so
+that a window spanning a leap second keeps uniform steps).
+
+UTC - TAI is known only up to the validity date of the leap-second table in use. Beyond it the
+last value is extrapolated (assumed constant): ``TimeScales.utc_tai_extrapolated`` says so for
+each result, and one ``LeapSecondExtrapolationWarning`` per process says so once.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import re
+import warnings
+from collections.abc import Sequence
+from dataclasses import dataclass
+from typing import Any, Union
+
+import erfa
+import numpy as np
+
+from .errors import InputError
+
+__all__ = [
+    "EpochLike",
+    "LeapSecondExtrapolationWarning",
+    "TimeScales",
+    "leap_seconds_known_until_utc",
+    "parse_utc",
+    "time_scales",
+    "utc_iso",
+]
+
+EpochLike = Union[str, _dt.datetime, np.datetime64, Sequence[Any], np.ndarray, tuple, "TimeScales"]
+
+# No leap second at the end of December 2025 (IERS Bulletin C 70, July 2025), so UTC - TAI is
+# announced until 2026-06-28 (expiry of the IERS leap-seconds.list that goes with it; from
+# memory). A newer table loaded into ERFA (``erfa.leap_seconds``, e.g. by astropy) wins.
+_ANNOUNCED_UNTIL = _dt.date(2026, 6, 28)
+
+_ISO = re.compile(
+    r"^\s*(\d{4})-(\d{2})-(\d{2})(?:[T ](\d{2}):(\d{2})(?::(\d{2}(?:\.\d*)?))?)?"
+    r"\s*(Z|UTC|[+-]\d{2}:?\d{2})?\s*$",
+    re.IGNORECASE,
+)
+
+
+class LeapSecondExtrapolationWarning(UserWarning):
+    """UTC - TAI was extrapolated beyond the leap-second table (issued once per process)."""
+
+
+@dataclass(frozen=True)
+class TimeScales:
+    """One or many epochs in four time scales, each a two-part Julian date (arrays broadcast).
+
+    utc1, utc2: UTC as ERFA's quasi Julian date (days of 86 399, 86 400 or 86 401 s)
+    tai1, tai2, tt1, tt2, ut11, ut12: TAI, TT and UT1 Julian dates
+    dut1_s: UT1 - UTC used, s
+    utc_tai_extrapolated: True when any epoch lies beyond the leap-second table's validity
+    """
+
+    utc1: np.ndarray
+    utc2: np.ndarray
+    tai1: np.ndarray
+    tai2: np.ndarray
+    tt1: np.ndarray
+    tt2: np.ndarray
+    ut11: np.ndarray
+    ut12: np.ndarray
+    dut1_s: float
+    utc_tai_extrapolated: bool
+
+    @property
+    def shape(self) -> tuple[int, ...]:
+        return np.shape(self.tt2)
+
+    def seconds_since(self, other: TimeScales) -> np.ndarray:
+        """Elapsed SI seconds (in TAI) from ``other`` to these epochs."""
+        return ((self.tai1 - other.tai1) + (self.tai2 - other.tai2)) * 86_400.0
+
+
+def _parse_one(text: str, field: str) -> tuple[int, int, int, int, int, float]:
+    m = _ISO.match(text)
+    if not m:
+        raise InputError(field, text, "is not an ISO 8601 date-time (e.g. 2027-03-21T10:30:00Z)")
+    y, mo, d, h, mi, s, zone = m.groups()
+    year, month, day = int(y), int(mo), int(d)
+    hour, minute, sec = int(h or 0), int(mi or 0), float(s or 0.0)
+    if zone and zone.upper() not in ("Z", "UTC"):
+        sign = 1 if zone[0] == "+" else -1
+        digits = zone[1:].replace(":", "")
+        offset_min = sign * (int(digits[:2]) * 60 + int(digits[2:]))
+        base = _dt.datetime(year, month, day, hour, minute) - _dt.timedelta(minutes=offset_min)
+        year, month, day, hour, minute = base.year, base.month, base.day, base.hour, base.minute
+    return year, month, day, hour, minute, sec
+
+
+def _from_datetime(t: _dt.datetime) -> tuple[int, int, int, int, int, float]:
+    if t.tzinfo is not None:  # naive datetimes are taken as UTC
+        t = t.astimezone(_dt.timezone.utc)
+    return t.year, t.month, t.day, t.hour, t.minute, t.second + t.microsecond * 1e-6
+
+
+def _calendar_fields(epoch: Any, field: str) -> tuple[int, int, int, int, int, float]:
+    if isinstance(epoch, str):
+        return _parse_one(epoch, field)
+    if isinstance(epoch, _dt.datetime):
+        return _from_datetime(epoch)
+    if isinstance(epoch, np.datetime64):
+        us = epoch.astype("datetime64[us]").astype(_dt.datetime)
+        return _from_datetime(us)
+    raise InputError(field, epoch, "is not an epoch (ISO 8601 string, datetime or JD pair)")
+
+
+def _is_jd_pair(epoch: Any) -> bool:
+    if not (isinstance(epoch, tuple) and len(epoch) == 2):
+        return False
+    return all(np.issubdtype(np.asarray(p).dtype, np.number) for p in epoch)
+
+
+def parse_utc(epoch_utc: EpochLike, field: str = "epoch_utc") -> tuple[np.ndarray, np.ndarray]:
+    """UTC two-part quasi Julian date of an epoch or of many epochs.
+
+    Given an ISO 8601 string (``Z``, ``UTC`` or a numeric offset; no zone means UTC; seconds may
+    read 60 during a leap second), a ``datetime`` (naive = UTC), a ``numpy.datetime64``, a
+    sequence or array of these, or a tuple ``(jd1, jd2)`` of UTC quasi Julian dates (passed
+    through). Dates before 1960 (no UTC) are refused. ERFA ``dtf2d``.
+    """
+    if isinstance(epoch_utc, TimeScales):
+        return epoch_utc.utc1, epoch_utc.utc2
+    if _is_jd_pair(epoch_utc):
+        jd1, jd2 = (np.asarray(p, dtype=float) for p in epoch_utc)
+        return np.broadcast_arrays(jd1, jd2)
+    if isinstance(epoch_utc, (str, _dt.datetime, np.datetime64)):
+        parts = [_calendar_fields(epoch_utc, field)]
+        shape: tuple[int, ...] = ()
+    else:
+        flat = np.asarray(epoch_utc, dtype=object)
+        shape = flat.shape
+        parts = [_calendar_fields(e, f"{field}[{k}]") for k, e in enumerate(flat.ravel())]
+    fields = np.array(parts, dtype=float).reshape(*shape, 6) if parts else np.zeros((0, 6))
+    if np.any(fields[..., 0] < 1960):
+        raise InputError(field, epoch_utc, "lies before 1960, where UTC is not defined")
+    cols = [fields[..., k] for k in range(6)]
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", erfa.ErfaWarning)  # dubious year: handled below
+            jd1, jd2 = erfa.dtf2d("UTC", *(c.astype(int) for c in cols[:5]), cols[5])
+    except erfa.ErfaError as err:
+        raise InputError(field, epoch_utc, f"is not a valid calendar date-time ({err})") from None
+    return np.asarray(jd1), np.asarray(jd2)
+
+
+def leap_seconds_known_until_utc() -> _dt.date:
+    """Last date to which UTC - TAI is known: the later of ERFA's table expiry and the latest
+    announcement this module cites (IERS Bulletin C 70)."""
+    expires = erfa.leap_seconds.expires
+    table_date = expires.date() if isinstance(expires, _dt.datetime) else _ANNOUNCED_UNTIL
+    return max(table_date, _ANNOUNCED_UNTIL)
+
+
+class _WarnOnce:
+    """Remembers whether the extrapolation warning was issued (the kernel's one bit of state)."""
+
+    issued = False
+
+
+def _check_extrapolation(utc1: np.ndarray, utc2: np.ndarray) -> bool:
+    until = leap_seconds_known_until_utc()
+    jd_until = sum(erfa.cal2jd(until.year, until.month, until.day))
+    extrapolated = bool(np.any((utc1 - jd_until) + utc2 > 0.0))
+    if extrapolated and not _WarnOnce.issued:
+        _WarnOnce.issued = True
+        warnings.warn(
+            f"UTC - TAI is extrapolated after {until.isoformat()} (the leap-second table's "
+            "validity): the last value is assumed; results record this",
+            LeapSecondExtrapolationWarning,
+            stacklevel=3,
+        )
+    return extrapolated
+
+
+def time_scales(
+    epoch_utc: EpochLike,
+    *,
+    offset_s: Any = 0.0,
+    dut1_s: float = 0.0,
+    field: str = "epoch_utc",
+) -> TimeScales:
+    """UTC, TAI, TT and UT1 of ``epoch_utc`` plus ``offset_s`` elapsed SI seconds (broadcast).
+
+    Given an epoch or epochs (see ``parse_utc``), optional offsets in s (e.g. a window's steps:
+    one start epoch and a million offsets cost one parse), and dUT1 = UT1 - UTC in s (|dUT1| <=
+    1 s). Returns ``TimeScales``. ERFA ``utctai``, ``taiutc``, ``taitt``, ``utcut1``.
+    """
+    if not np.isfinite(dut1_s) or abs(dut1_s) > 1.0:
+        raise InputError("earth_orientation.dut1_s", dut1_s, "must be a UT1 - UTC within +-1 s")
+    offset = np.asarray(offset_s, dtype=float)
+    if not np.all(np.isfinite(offset)):
+        raise InputError("offset_s", offset_s, "must be finite seconds")
+    utc1, utc2 = parse_utc(epoch_utc, field)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", erfa.ErfaWarning)  # dubious year: reported once, below
+        tai1, tai2 = erfa.utctai(utc1, utc2)
+        if np.any(offset != 0.0):
+            tai1, tai2 = np.broadcast_arrays(tai1, tai2 + offset / 86_400.0)
+            utc1, utc2 = erfa.taiutc(tai1, tai2)
+        tt1, tt2 = erfa.taitt(tai1, tai2)
+        ut11, ut12 = erfa.utcut1(utc1, utc2, dut1_s)
+    extrapolated = _check_extrapolation(np.asarray(utc1), np.asarray(utc2))
+    arrays = [np.asarray(a, dtype=float) for a in (utc1, utc2, tai1, tai2, tt1, tt2, ut11, ut12)]
+    return TimeScales(*arrays, dut1_s=float(dut1_s), utc_tai_extrapolated=extrapolated)
+
+
+def utc_iso(utc1: Any, utc2: Any, decimals: int = 3) -> np.ndarray | str:
+    """ISO 8601 UTC strings (``2027-03-21T10:30:00.000Z``) of UTC quasi Julian dates.
+
+    ERFA ``d2dtf`` (leap seconds print as second 60). Returns a str for one epoch, else an
+    array of str with the epochs' shape.
+    """
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", erfa.ErfaWarning)
+        iy, im, iday, ihmsf = erfa.d2dtf("UTC", decimals, utc1, utc2)
+    iy, im, iday = np.atleast_1d(iy), np.atleast_1d(im), np.atleast_1d(iday)
+    hmsf = np.atleast_1d(ihmsf)
+    text = [
+        f"{y:04d}-{mo:02d}-{d:02d}T{t['h']:02d}:{t['m']:02d}:{t['s']:02d}"
+        + (f".{t['f']:0{decimals}d}" if decimals > 0 else "")
+        + "Z"
+        for y, mo, d, t in zip(iy.ravel(), im.ravel(), iday.ravel(), hmsf.ravel(), strict=True)
+    ]
+    out = np.array(text, dtype=object).reshape(np.shape(np.asarray(utc2) + np.asarray(utc1)))
+    return str(out.item()) if out.ndim == 0 else out
