@@ -54,7 +54,9 @@ class Body:
         return self.radius_km * (1.0 - self.flattening)
 
 
-_WGS84 = "NIMA TR8350.2, Department of Defense World Geodetic System 1984, 3rd ed. (2000), Table 3.1"
+_WGS84 = (
+    "NIMA TR8350.2, Department of Defense World Geodetic System 1984, 3rd ed. (2000), Table 3.1"
+)
 _EGM96 = (
     "EGM96 (Lemoine et al. 1998, NASA/TP-1998-206861), normalised C20 = -4.84165371736e-4, "
     "C30 = 9.57254173792e-7, C40 = 5.39873863789e-7 (coefficients quoted from memory)"
@@ -120,9 +122,7 @@ MARS = Body(
     },
 )
 
-BODIES: Mapping[str, Body] = MappingProxyType(
-    {b.name.lower(): b for b in (EARTH, SUN, MOON, MARS)}
-)
+BODIES: Mapping[str, Body] = MappingProxyType({b.name.lower(): b for b in (EARTH, SUN, MOON, MARS)})
 
 # IAU 2012 Resolution B2: the astronomical unit is exactly 149 597 870 700 m.
 AU_KM = 149_597_870.700
