@@ -28,6 +28,7 @@ from numpy.typing import ArrayLike
 from .atmosphere import SolarActivityLevel, density_kg_m3, solar_activity_level
 from .constants import AU_KM, EARTH, MOON, SUN, Body
 from .errors import InputError
+from .sun import sun_position_from_tt_km
 
 __all__ = [
     "ForceModel",
@@ -170,13 +171,11 @@ def sun_moon_positions_gcrf_km(
 ) -> tuple[np.ndarray, np.ndarray]:
     """Geocentric GCRS positions of the Sun and the Moon, km, at TT Julian dates jd_tt1 + jd_tt2.
 
-    Sun: ERFA epv00 (the Earth's heliocentric position, reversed; VSOP2000-based, about 5e-6 au
-    / a few arcsec), TDB taken as TT. Moon: ERFA moon98 (Meeus, Astronomical Algorithms, 2nd
+    Sun: ``orbitledger.kernel.sun.sun_position_from_tt_km`` (ERFA epv00, error below 12 km). Moon: ERFA moon98 (Meeus, Astronomical Algorithms, 2nd
     ed., ch. 47, truncated ELP-2000/82; about 10 arcsec / a few hundred km at worst). Geometric
     positions, no light time; shapes ``(..., 3)``.
     """
-    pvh, _ = erfa.epv00(jd_tt1, jd_tt2)
-    r_sun = -np.asarray(pvh["p"]) * AU_KM
+    r_sun = sun_position_from_tt_km(np.asarray(jd_tt1, float), np.asarray(jd_tt2, float))
     r_moon = np.asarray(erfa.moon98(jd_tt1, jd_tt2)["p"]) * AU_KM
     return r_sun, r_moon
 
