@@ -53,3 +53,10 @@ from .design import (
     sun_synchronous_altitude_km,
     sun_synchronous_repeat,
 )
+from .budget import (
+    BudgetItem,
+    delta_v_budget,
+    disposal_perigee_lowering,
+    drag_makeup_dv_km_s_per_year,
+    propellant_mass_kg,
+)
