@@ -1,0 +1,95 @@
+"""UTC epochs as case files write them: ISO 8601 text, checked and normalised with ERFA.
+
+A case writes every instant as ``YYYY-MM-DDTHH:MM:SS[.fff]Z`` (UTC, ISO 8601 / RFC 3339). The
+text is parsed here, checked against the calendar and the leap-second table of ERFA
+(``eraDtf2d``: a second of 60 is valid only in a leap second), and written back in one
+normal form, so that two spellings of the same instant give the same case fingerprint.
+"""
+
+from __future__ import annotations
+
+import re
+import warnings
+
+import erfa
+
+__all__ = ["normalise_utc", "utc_to_jd", "utc_is_outside_leap_table", "utc_seconds_between"]
+
+_ISO_UTC = re.compile(
+    r"^(?P<y>\d{4})-(?P<mo>\d{2})-(?P<d>\d{2})[Tt ](?P<h>\d{2}):(?P<mi>\d{2})"
+    r"(?::(?P<s>\d{2})(?:\.(?P<f>\d{1,12}))?)?(?P<zone>[Zz]|[+-]\d{2}:?\d{2})?$"
+)
+
+
+def _fields(text: str) -> tuple[int, int, int, int, int, float, str]:
+    if not isinstance(text, str):
+        raise ValueError("must be a UTC time as ISO 8601 text, e.g. '2027-03-21T10:30:00Z'")
+    match = _ISO_UTC.match(text.strip())
+    if not match:
+        raise ValueError("not an ISO 8601 UTC time; write it like '2027-03-21T10:30:00Z'")
+    zone = match["zone"]
+    if zone and zone.upper() != "Z" and zone.replace(":", "") not in ("+0000", "-0000"):
+        raise ValueError("give the time in UTC (suffix Z), not with a zone offset")
+    fraction = (match["f"] or "").rstrip("0")
+    seconds = int(match["s"] or 0)
+    return (
+        int(match["y"]),
+        int(match["mo"]),
+        int(match["d"]),
+        int(match["h"]),
+        int(match["mi"]),
+        seconds + (float("0." + fraction) if fraction else 0.0),
+        f"{seconds:02d}" + (f".{fraction}" if fraction else ""),
+    )
+
+
+def _dtf2d(y: int, mo: int, d: int, h: int, mi: int, s: float) -> tuple[float, float, bool]:
+    """ERFA's calendar check; returns (jd1, jd2, dubious_year)."""
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", erfa.ErfaWarning)
+        try:
+            jd1, jd2 = erfa.dtf2d("UTC", y, mo, d, h, mi, s)
+        except erfa.ErfaError as err:
+            reason = str(err).split('"')[-2] if '"' in str(err) else str(err)
+            raise ValueError(f"not a valid UTC date and time ({reason})") from None
+    notes = " ".join(str(w.message) for w in caught)
+    if "after end of day" in notes:
+        raise ValueError("a second of 60 exists only in a leap second (IERS), not on this day")
+    return float(jd1), float(jd2), "dubious year" in notes
+
+
+def normalise_utc(text: str) -> str:
+    """Check a UTC time and return it as ``YYYY-MM-DDTHH:MM:SS[.fff]Z`` (trailing zeros dropped).
+
+    Raises ValueError with a plain-words reason for text that is not an ISO 8601 UTC time,
+    a date that does not exist, a zone offset other than +00:00, or second 60 outside a leap
+    second (ERFA eraDtf2d, IAU SOFA).
+    """
+    y, mo, d, h, mi, s, seconds_text = _fields(text)
+    _dtf2d(y, mo, d, h, mi, s)
+    return f"{y:04d}-{mo:02d}-{d:02d}T{h:02d}:{mi:02d}:{seconds_text}Z"
+
+
+def utc_to_jd(text: str) -> tuple[float, float]:
+    """Two-part Julian date (UTC, ERFA's quasi-JD convention for leap-second days) of a UTC text."""
+    y, mo, d, h, mi, s, _ = _fields(text)
+    jd1, jd2, _dubious = _dtf2d(y, mo, d, h, mi, s)
+    return jd1, jd2
+
+
+def utc_is_outside_leap_table(text: str) -> bool:
+    """True when ERFA calls the year dubious: before 1960 or past its leap-second table's reach."""
+    y, mo, d, h, mi, s, _ = _fields(text)
+    return _dtf2d(y, mo, d, h, mi, s)[2]
+
+
+def utc_seconds_between(start: str, end: str) -> float:
+    """UTC seconds from ``start`` to ``end`` (negative when ``end`` is earlier).
+
+    Computed in TAI (ERFA eraUtctai), so a leap second in between counts as the second it is.
+    """
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", erfa.ErfaWarning)  # dubious year: already reported
+        a1, a2 = erfa.utctai(*utc_to_jd(start))
+        b1, b2 = erfa.utctai(*utc_to_jd(end))
+    return float(((b1 - a1) + (b2 - a2)) * 86400.0)
