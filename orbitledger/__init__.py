@@ -15,9 +15,10 @@ __all__ = ["__version__", "open_case", "result"]
 def open_case(path):
     """Load the case file at ``path``, or write the starter case there first if it is missing.
 
-    Returns a :class:`orbitledger.case.Case` bound to its file; ``case.editor()`` opens the
+    Returns the case bound to its file (an :class:`orbitledger.case.CaseFile`: ``.case`` is
+    the validated Case, ``.save(case)`` writes it back atomically); ``.editor()`` opens the
     editing widget. Raises :class:`orbitledger.case.CaseError` for a file that does not validate.
     """
-    from .case import open_case as _open_case
+    from ._opened import open_case as _open_case
 
     return _open_case(path)
