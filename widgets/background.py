@@ -1,0 +1,163 @@
+"""Long computations off the form's thread, with a progress bar and a cancel button.
+
+A job runs ``fn(progress)`` in a daemon thread. ``fn`` reports with ``progress(fraction, text)``
+and should call it between chunks of work: that call raises :class:`JobCancelled` once the user
+pressed Cancel (or the editor cancelled the job because the case changed), so a job stops at
+the next chunk boundary without any thread being killed. The form stays live meanwhile: the
+kernel keeps handling widget messages while the thread computes (ipywidgets' documented way of
+doing background work; widget state set from a thread is sent to the front end as usual).
+"""
+
+from __future__ import annotations
+
+import threading
+import time
+from collections.abc import Callable
+from typing import Any
+
+import ipywidgets as w
+
+__all__ = ["BackgroundJob", "JobCancelled", "Progress"]
+
+
+class JobCancelled(Exception):
+    """Raised inside a job by ``progress(...)`` once the job has been cancelled."""
+
+
+class Progress:
+    """The callable a job reports through; also tells the job whether it was cancelled."""
+
+    def __init__(self, job: BackgroundJob, cancel: threading.Event) -> None:
+        self._job = job
+        self._cancel = cancel
+
+    @property
+    def cancelled(self) -> bool:
+        return self._cancel.is_set()
+
+    def __call__(self, fraction: float, text: str = "") -> None:
+        if self.cancelled:
+            raise JobCancelled()
+        self._job._report(fraction, text)
+
+
+class BackgroundJob:
+    """One named long computation with its own row of widgets (label, bar, status, buttons).
+
+    ``fn(progress) -> result``; ``describe(result) -> str`` writes the status line when done;
+    ``on_done(job)`` is called (from the worker thread) after success, failure or cancel.
+    ``min_interval_s`` throttles progress messages to the front end.
+    """
+
+    def __init__(
+        self,
+        title: str,
+        fn: Callable[[Progress], Any] | None = None,
+        *,
+        describe: Callable[[Any], str] = str,
+        on_done: Callable[[BackgroundJob], None] | None = None,
+        min_interval_s: float = 0.1,
+    ) -> None:
+        self.title = title
+        self.fn = fn
+        self.describe = describe
+        self.on_done = on_done
+        self.min_interval_s = min_interval_s
+        self.state = "idle"  # idle | running | done | cancelled | failed
+        self.result: Any = None
+        self.error: BaseException | None = None
+        self._cancel = threading.Event()
+        self._finished = threading.Event()
+        self._finished.set()
+        self._thread: threading.Thread | None = None
+        self._last_report = 0.0
+
+        self.run_button = w.Button(
+            description=f"Run: {title}", tooltip=f"Compute {title} in the background"
+        )
+        self.run_button.layout = w.Layout(width="15em")
+        self.bar = w.FloatProgress(value=0.0, min=0.0, max=1.0, layout=w.Layout(width="12em"))
+        self.bar.layout.visibility = "hidden"
+        self.cancel_button = w.Button(
+            description="Cancel", tooltip=f"Stop {title}", disabled=True, button_style=""
+        )
+        self.cancel_button.layout = w.Layout(width="6em")
+        self.status = w.HTML("", layout=w.Layout(flex="1 1 auto"))
+        self.status.add_class("ol-note")
+        self.run_button.on_click(lambda _b: self.start())
+        self.cancel_button.on_click(lambda _b: self.cancel())
+        self.widget = w.HBox([self.run_button, self.bar, self.cancel_button, self.status])
+        self.widget.add_class("ol-job")
+
+    @property
+    def running(self) -> bool:
+        return not self._finished.is_set()
+
+    def start(self, fn: Callable[[Progress], Any] | None = None) -> None:
+        """Start the job (cancelling a run still going); returns at once."""
+        if fn is not None:
+            self.fn = fn
+        if self.fn is None:
+            raise ValueError(f"{self.title}: no computation to run")
+        self.cancel()
+        self.wait()
+        self._cancel = threading.Event()
+        self._finished = threading.Event()
+        self.state, self.result, self.error = "running", None, None
+        self.bar.value = 0.0
+        self.bar.bar_style = ""
+        self.bar.layout.visibility = "visible"
+        self.cancel_button.disabled = False
+        self.status.value = "starting\u2026"
+        self._thread = threading.Thread(
+            target=self._run, args=(self.fn, self._cancel), name=f"orbitledger {self.title}"
+        )
+        self._thread.daemon = True
+        self._thread.start()
+
+    def cancel(self) -> None:
+        """Ask the job to stop at its next progress report."""
+        if self.running:
+            self._cancel.set()
+            self.status.value = "cancelling\u2026"
+
+    def wait(self, timeout: float | None = None) -> bool:
+        """Block until the job has finished; True if it did within ``timeout`` s."""
+        return self._finished.wait(timeout)
+
+    def _report(self, fraction: float, text: str) -> None:
+        now = time.monotonic()
+        if now - self._last_report < self.min_interval_s and fraction < 1.0:
+            return
+        self._last_report = now
+        self.bar.value = min(max(float(fraction), 0.0), 1.0)
+        self.status.value = text or f"{100.0 * self.bar.value:.0f} %"
+
+    def _run(self, fn: Callable[[Progress], Any], cancel: threading.Event) -> None:
+        progress = Progress(self, cancel)
+        try:
+            result = fn(progress)
+            if cancel.is_set():
+                raise JobCancelled()
+        except JobCancelled:
+            self.state = "cancelled"
+            self.status.value = "cancelled"
+            self.bar.bar_style = "warning"
+        except Exception as exc:  # a job's failure is shown beside it, never lost
+            self.state, self.error = "failed", exc
+            self.status.value = f"failed: {_escape(str(exc))}"
+            self.bar.bar_style = "danger"
+        else:
+            self.state, self.result = "done", result
+            self.bar.value = 1.0
+            self.bar.bar_style = "success"
+            self.status.value = _escape(self.describe(result))
+        finally:
+            self.cancel_button.disabled = True
+            self._finished.set()
+        if self.on_done is not None:
+            self.on_done(self)
+
+
+def _escape(text: str) -> str:
+    return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")

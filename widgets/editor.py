@@ -1,0 +1,464 @@
+"""The case editor: a form for every section of a case, live results and figures.
+
+``CaseEditor(case_file)`` (or ``orbitledger.open_case(path).editor()``) shows the case as a
+form. Every edit goes the same way, whether typed or scripted with :meth:`CaseEditor.apply`:
+
+1. the case model validates the changed case (``Case.with_changes``); a refusal raises
+   ``CaseError`` and changes nothing: not the case, not the file, not the results;
+2. the case file is saved atomically (``CaseFile.save``); if the file changed on disk since it
+   was loaded, the editor asks (reload from disk, or overwrite) instead of overwriting;
+3. the new case becomes current, joins the undo history, and the results panel and the figures
+   update in place.
+
+Typing is debounced; a refused value shows its reason beside its field and the last valid case
+stays in force. Results that take longer (over the analysis window, or years) run in the
+background with a progress bar and a cancel button.
+"""
+
+from __future__ import annotations
+
+import html
+import time
+from collections.abc import Callable, Mapping
+from datetime import datetime
+from pathlib import Path
+from typing import Any
+
+import ipywidgets as w
+
+from orbitledger import analysis
+from orbitledger.case import CaseError, CaseFileChanged
+
+from .background import BackgroundJob, Progress
+from .debounce import Debouncer
+from .fields import BoolField, ChoiceField, Field, NumberField, TextField, VectorField
+from .history import History
+from .livefigures import LiveFigure, load_bokehjs
+from .results import ResultsPanel
+from .sections import SECTIONS, field_specs
+from .style import style_sheet
+from .tables import BurnTable, ListTable, StationTable
+
+__all__ = ["CaseEditor", "editor_figures"]
+
+_FORMS = (
+    ("classical elements", "classical"),
+    ("apsis altitudes", "apsides"),
+    ("Cartesian state (GCRF)", "cartesian"),
+)
+
+
+def editor_figures(theme: str = "light") -> list[tuple[str, Callable, Callable]]:
+    """The editor's figures: (name, build(case), data(case, screen)), built by the shared
+    builders of ``orbitledger.figures`` from the case (see ``casefigures``)."""
+    from .casefigures import CASE_FIGURES
+
+    return [(f.name, lambda case, f=f: f.build(case, theme), f.data) for f in CASE_FIGURES()]
+
+
+def _error_path(err: Exception) -> str | None:
+    for attr in ("path", "field"):
+        value = getattr(err, attr, None)
+        if isinstance(value, str):
+            return value
+    return None
+
+
+def _error_text(err: Exception) -> str:
+    reason = getattr(err, "reason", None)
+    return str(reason) if reason else str(err)
+
+
+class CaseEditor(w.VBox):
+    """The editing widget for one case (bound to its case file when given one).
+
+    ``source``: a ``CaseFile`` (edits are saved to it) or a bare ``Case`` (edits stay in the
+    session). ``theme``: the figures' palette, ``"light"`` or ``"dark"``. ``debounce_s``: quiet
+    time after the last keystroke before a typed value is applied. ``figures``: (name,
+    build, data) triples; default :func:`editor_figures`.
+    """
+
+    def __init__(
+        self,
+        source: Any,
+        *,
+        theme: str = "light",
+        debounce_s: float = 0.35,
+        figures: list[tuple[str, Callable, Callable | None]] | None = None,
+    ) -> None:
+        super().__init__()
+        load_bokehjs()
+        if hasattr(source, "save") and hasattr(source, "case"):
+            self.case_file, case = source, source.case
+        else:
+            self.case_file, case = None, source
+        self._case = case
+        self._history: History[Any] = History(case)
+        self._debounce = Debouncer(debounce_s)
+        self._pending: Any = None  # a valid case waiting on the changed-on-disk question
+        self._results: dict[str, Any] = {}
+        self._slow_results: dict[str, Any] = {}
+        self.timings: dict[str, float] = {}
+        self.add_class("ol-editor")
+        self.layout.width = "100%"
+        self._build(figures if figures is not None else editor_figures(theme))
+        self._refresh_fields(clear_errors=True)
+        self._recompute()
+
+    # -- public API ---------------------------------------------------------------------------
+    @property
+    def case(self) -> Any:
+        """The current validated case (what the case file holds)."""
+        return self._case
+
+    @property
+    def results(self) -> dict[str, Any]:
+        """The current named results, ``{name: orbitledger.analysis.Result}``."""
+        return {**self._results, **self._slow_results}
+
+    @property
+    def summary(self) -> dict[str, float]:
+        """The current results as ``{name: value}`` (orbit_summary's keys, plus more)."""
+        return analysis.results_as_values(self.results)
+
+    def apply(self, changes: Mapping[str, Any]) -> Any:
+        """Apply ``{dotted path: value}`` as one edit; returns the new case.
+
+        Raises ``CaseError`` (nothing changes) for an invalid value, and ``CaseFileChanged``
+        when the file changed on disk since it was loaded: the editor then shows its question
+        (reload from disk / overwrite) and keeps the edit pending until it is answered.
+        """
+        return self._commit(self._case.with_changes(dict(changes)))
+
+    def switch_form(self, form: str) -> Any:
+        """Show the orbit in ``form`` ("classical", "apsides", "cartesian"), converted exactly."""
+        return self._commit(self._case.with_orbit_form(form))
+
+    def undo(self) -> Any:
+        """Return to the case before the last edit (and save it); returns the case."""
+        self._debounce.flush()
+        return self._commit(self._history.peek_undo(), move=self._history.undo)
+
+    def redo(self) -> Any:
+        self._debounce.flush()
+        return self._commit(self._history.peek_redo(), move=self._history.redo)
+
+    def reload_from_disk(self) -> Any:
+        """Drop a pending edit and take the case file's current content as the case."""
+        fresh = self.case_file.reload() if self.case_file is not None else self._case
+        self._pending = None
+        self._conflict.layout.display = "none"
+        self._history.push(fresh)
+        self._set_case(fresh, clear_errors=True)
+        self._status("reloaded from disk")
+        return fresh
+
+    def overwrite(self) -> Any:
+        """Save the pending edit over the file that changed on disk."""
+        if self._pending is None:
+            raise RuntimeError("no edit is waiting on the changed-on-disk question")
+        pending, self._pending = self._pending, None
+        self._conflict.layout.display = "none"
+        return self._commit(pending, force=True)
+
+    @property
+    def fields(self) -> dict[str, Field]:
+        """The field widgets by dotted path (for scripting and tests)."""
+        return dict(self._fields)
+
+    # -- the one edit path ----------------------------------------------------------------------
+    def _commit(
+        self,
+        new_case: Any,
+        *,
+        move: Callable[[], Any] | None = None,
+        force: bool = False,
+        source: Any = None,
+    ) -> Any:
+        if self.case_file is not None:
+            try:
+                self.case_file.save(new_case, force=force)
+            except CaseFileChanged:
+                self._pending = new_case
+                self._conflict.layout.display = "flex"
+                self._status("not saved: the file changed on disk", error=True)
+                raise
+        if move is not None:
+            move()
+        else:
+            self._history.push(new_case)
+        self._set_case(new_case, clear_errors=move is not None or force, source=source)
+        self._status("saved" if self.case_file is not None else "applied (no case file)")
+        return new_case
+
+    def _set_case(self, case: Any, *, clear_errors: bool, source: Any = None) -> None:
+        self._case = case
+        t0 = time.perf_counter()
+        self._refresh_fields(clear_errors=clear_errors, source=source)
+        self.timings = {"fields_s": time.perf_counter() - t0}
+        self._recompute()
+
+    def _recompute(self) -> None:
+        t0 = time.perf_counter()
+        try:
+            self._results = analysis.case_results(self._case, groups=analysis.FAST_GROUPS)
+        except ValueError as exc:  # a valid case the kernel cannot summarise (shown, not lost)
+            self._results = {}
+            self.results_panel.show_error(f"results unavailable: {exc}")
+        t1 = time.perf_counter()
+        self._slow_results = {}
+        slow = [g for g in analysis.ALL_GROUPS if g not in analysis.FAST_GROUPS]
+        self.results_panel.show(self._results, "window results on the way" if slow else "")
+        t2 = time.perf_counter()
+        build = sync = 0.0
+        for figure in self._figures:
+            figure.update(self._case)
+            build += figure.timings["build_s"]
+            sync += figure.timings["sync_s"]
+        self.timings.update(
+            kernel_s=t1 - t0, results_panel_s=t2 - t1, figure_build_s=build, figure_sync_s=sync
+        )
+        if slow:
+            generation = self._history_marker()
+            self._slow_job.start(lambda progress: self._slow_groups(slow, progress, generation))
+
+    def _history_marker(self) -> int:
+        return id(self._case)
+
+    def _slow_groups(self, groups: list[str], progress: Progress, marker: int) -> dict[str, Any]:
+        case, out = self._case, {}
+        for k, group in enumerate(groups):
+            progress(k / len(groups), f"{group}\u2026")
+            out.update(analysis.case_results(case, groups=[group]))
+        progress(1.0)
+        if self._history_marker() == marker:
+            self._slow_results = out
+            self.results_panel.show(self.results)
+        return out
+
+    # -- building the form --------------------------------------------------------------------
+    def _build(self, figure_builders: list[tuple[str, Callable, Callable | None]]) -> None:
+        self._title = w.HTML()
+        self._title.add_class("ol-title")
+        self._path = w.HTML()
+        self._path.add_class("ol-path")
+        self._state = w.HTML()
+        self._state.add_class("ol-status")
+        self.undo_button = w.Button(description="Undo", icon="undo", tooltip="Undo the last edit")
+        self.redo_button = w.Button(description="Redo", icon="repeat", tooltip="Redo")
+        for button in (self.undo_button, self.redo_button):
+            button.layout = w.Layout(width="6.5em")
+        self.undo_button.on_click(lambda _b: self._guarded(self.undo))
+        self.redo_button.on_click(lambda _b: self._guarded(self.redo))
+        brand = w.HTML('<span class="ol-brand">orbitledger \u00b7 case editor</span>')
+        names = w.VBox(
+            [
+                w.HBox([brand, self._title], layout=w.Layout(gap="1em")),
+                w.HBox([self._path, self._state], layout=w.Layout(gap="1em")),
+            ],
+            layout=w.Layout(flex="1 1 auto"),
+        )
+        header = w.HBox([names, self.undo_button, self.redo_button])
+        header.add_class("ol-header")
+
+        reload_button = w.Button(
+            description="Reload from disk",
+            icon="refresh",
+            tooltip="Discard this edit and load the file as it is now",
+        )
+        overwrite_button = w.Button(
+            description="Overwrite",
+            icon="save",
+            button_style="warning",
+            tooltip="Save this edit over the file's new content",
+        )
+        reload_button.layout = overwrite_button.layout = w.Layout(width="12em")
+        reload_button.on_click(lambda _b: self._guarded(self.reload_from_disk))
+        overwrite_button.on_click(lambda _b: self._guarded(self.overwrite))
+        self._conflict = w.HBox(
+            [
+                w.HTML(
+                    "<b>The case file changed on disk since it was loaded.</b> "
+                    "Your edit is not saved yet: reload the file, or overwrite it with your edit?",
+                    layout=w.Layout(flex="1 1 auto"),
+                ),
+                reload_button,
+                overwrite_button,
+            ]
+        )
+        self._conflict.add_class("ol-conflict")
+        self._conflict.layout.display = "none"
+        self._conflict_buttons = (reload_button, overwrite_button)
+
+        self.form_choice = w.Dropdown(
+            options=_FORMS,
+            description="Orbit given as",
+            style={"description_width": "10.5em"},
+            layout=w.Layout(width="25em"),
+        )
+        self.form_choice.observe(self._form_switched, names="value")
+        self._sections: dict[str, w.VBox] = {}
+        self._fields: dict[str, Field] = {}
+        boxes = {}
+        for key, title, _paths in SECTIONS:
+            box = w.VBox([])
+            box.add_class("ol-section")
+            box.layout.flex = "1 1 30em"
+            self._sections[key] = box
+            boxes[key] = (title, box)
+        self._section_titles = {key: title for key, title, _ in SECTIONS}
+        self.results_panel = ResultsPanel()
+        self.results_panel.widget.layout.flex = "1 1 26em"
+        self.stations = StationTable([], self._propose_list)
+        self.burns = BurnTable([], self._propose_list)
+        self._slow_job = BackgroundJob("window results", describe=lambda r: f"{len(r)} results")
+        self._slow_job.run_button.layout.display = "none"
+        self._figures = [
+            LiveFigure(name, build, self._case, data) for name, build, data in figure_builders
+        ]
+        figure_box = w.HBox([f.widget for f in self._figures])
+        figure_box.add_class("ol-figures")
+        left = w.VBox(
+            [self._sections["orbit"], self._sections["epoch"]], layout=w.Layout(flex="1 1 30em")
+        )
+        middle = w.VBox(
+            [self._sections["spacecraft"], self._sections["window"], self._sections["budget"]],
+            layout=w.Layout(flex="1 1 30em"),
+        )
+        grid = w.HBox(
+            [left, middle, self.results_panel.widget],
+            layout=w.Layout(flex_flow="row wrap", align_items="flex-start"),
+        )
+        self.children = [
+            style_sheet(),
+            header,
+            self._conflict,
+            grid,
+            self.stations.widget,
+            self.burns.widget,
+            self._slow_job.widget,
+            figure_box,
+        ]
+
+    def _refresh_fields(self, *, clear_errors: bool, source: Any = None) -> None:
+        case = self._case
+        self._title.value = html.escape(getattr(getattr(case, "meta", None), "title", "") or "")
+        path = getattr(self.case_file, "path", None)
+        self._path.value = html.escape(str(Path(path).name) if path else "not bound to a file")
+        self.undo_button.disabled = not self._history.can_undo
+        self.redo_button.disabled = not self._history.can_redo
+        form = case.orbit.form
+        if self.form_choice.value != form:
+            self._quiet_form = True
+            try:
+                self.form_choice.value = form
+            finally:
+                self._quiet_form = False
+        for key, _title, _paths in SECTIONS:
+            self._refresh_section(key, clear_errors)
+        data = case.model_dump(mode="json")
+        for table in (self.stations, self.burns):
+            present = table.path in data
+            table.widget.layout.display = "flex" if present else "none"
+            if present:
+                table.sync(data[table.path] or [], typed_here=source is table)
+
+    def _refresh_section(self, key: str, clear_errors: bool) -> None:
+        specs = field_specs(self._case, key)
+        box = self._sections[key]
+        shown = [p for p, f in self._fields.items() if getattr(f, "_section", None) == key]
+        if [s.path for s in specs] != shown:
+            for path in shown:
+                del self._fields[path]
+            fields = [self._make_field(spec, key) for spec in specs]
+            heading = w.HTML(f'<span class="ol-section-title">{self._section_titles[key]}</span>')
+            extra = [self.form_choice] if key == "orbit" else []
+            box.children = [heading, *extra, *(f.widget for f in fields)]
+            box.layout.display = "flex" if fields else "none"
+            return
+        for spec in specs:
+            field = self._fields[spec.path]
+            if clear_errors or not field.has_error:
+                field.clear_error()
+                field.set_value(spec.value)
+
+    def _make_field(self, spec: Any, section: str) -> Field:
+        if spec.kind == "choice":
+            field: Field = ChoiceField(spec.path, spec.value, spec.options)
+        elif spec.kind == "bool":
+            field = BoolField(spec.path, spec.value)
+        elif spec.kind == "vector":
+            field = VectorField(spec.path, spec.value)
+        elif spec.kind == "text":
+            field = TextField(spec.path, spec.value, optional=spec.optional)
+        else:
+            field = NumberField(spec.path, spec.value, optional=spec.optional)
+        if spec.help:
+            for widget in field.widget.children[:-2]:
+                widget.tooltip = f"{spec.path}: {spec.help}"
+        field._section = section  # type: ignore[attr-defined]
+        field.on_edit(lambda f: self._debounce.trigger(f.path, lambda: self._field_edited(f)))
+        self._fields[spec.path] = field
+        return field
+
+    # -- typed edits ------------------------------------------------------------------------
+    def _field_edited(self, field: Field) -> None:
+        try:
+            value = field.value
+        except ValueError as exc:  # FieldParseError: not a number, empty
+            field.show_error(getattr(exc, "reason", str(exc)))
+            return
+        try:
+            new_case = self._case.with_changes({field.path: value})
+        except CaseError as exc:
+            self._show_refusal(exc, field)
+            return
+        field.clear_error()
+        self._guarded(lambda: self._commit(new_case, source=field))
+
+    def _propose_list(self, path: str, entries: list[dict[str, Any]], table: ListTable) -> None:
+        try:
+            new_case = self._case.with_changes({path: entries})
+        except CaseError as exc:
+            table.show_error(_error_path(exc), _error_text(exc))
+            return
+        self._guarded(lambda: self._commit(new_case, source=table))
+
+    def _form_switched(self, change: dict[str, Any]) -> None:
+        if getattr(self, "_quiet_form", False) or change["new"] == self._case.orbit.form:
+            return
+        try:
+            self.switch_form(change["new"])
+        except (CaseError, CaseFileChanged) as exc:
+            if isinstance(exc, CaseError):
+                self._status(_error_text(exc), error=True)
+            self._quiet_form = True
+            self.form_choice.value = self._case.orbit.form
+            self._quiet_form = False
+
+    def _show_refusal(self, exc: Exception, field: Field) -> None:
+        path = _error_path(exc)
+        target = self._fields.get(path or "", field)
+        text = _error_text(exc)
+        if target is not field:
+            text = f"{path}: {text}"
+        field.show_error(text)
+
+    def _guarded(self, action: Callable[[], Any]) -> None:
+        """Run a button's or a field's action; a refusal is shown, never raised into the UI."""
+        try:
+            action()
+        except CaseFileChanged:
+            pass  # the question is on screen
+        except (CaseError, IndexError, OSError) as exc:
+            self._status(_error_text(exc), error=True)
+
+    def _status(self, text: str, *, error: bool = False) -> None:
+        stamp = datetime.now().strftime("%H:%M:%S")
+        fingerprint = getattr(self._case, "fingerprint", "")
+        short = f" \u00b7 case {fingerprint[:12]}" if fingerprint else ""
+        self._state.value = html.escape(f"{text} {stamp}{short}")
+        if error:
+            self._state.add_class("ol-status-error")
+        else:
+            self._state.remove_class("ol-status-error")
