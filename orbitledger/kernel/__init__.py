@@ -60,3 +60,4 @@ from .budget import (
     drag_makeup_dv_km_s_per_year,
     propellant_mass_kg,
 )
+from .planets import planet_state
