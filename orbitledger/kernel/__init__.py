@@ -61,3 +61,20 @@ from .budget import (
     propellant_mass_kg,
 )
 from .planets import planet_state
+from .kepler import solve_kepler
+from .anomalies import (
+    eccentric_to_mean_anomaly,
+    eccentric_to_true_anomaly,
+    hyperbolic_to_mean_anomaly,
+    hyperbolic_to_true_anomaly,
+    mean_to_eccentric_anomaly,
+    mean_to_hyperbolic_anomaly,
+    mean_to_true_anomaly,
+    parabolic_mean_to_true,
+    parabolic_to_true_anomaly,
+    parabolic_true_to_mean,
+    true_to_eccentric_anomaly,
+    true_to_hyperbolic_anomaly,
+    true_to_mean_anomaly,
+    true_to_parabolic_anomaly,
+)
