@@ -1,0 +1,186 @@
+"""Command-line verb ``lifetime``: years until re-entry of a case's orbit under drag.
+
+``orbitledger lifetime CASE [--json] [--method orbit-averaged|numerical] [--max-years N]``
+
+The drag inputs come from the case: the spacecraft's mass, drag area and drag coefficient (the
+ballistic coefficient m / (Cd A)), ``force_model.solar_activity`` for the atmosphere level, and
+``budget.disposal.reentry_altitude_km`` (120 km when absent). The assumptions are printed beside
+the number with the lifetime caution. A long numerical run shows a progress bar on stderr when
+stderr is a terminal.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import sys
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from typing import Any
+
+__all__ = ["register", "lifetime_data", "run_lifetime"]
+
+_DEFAULT_REENTRY_KM = 120.0  # the usual entry interface (common practice), as in the case model
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:
+    verb = subparsers.add_parser(
+        "lifetime",
+        help="orbital lifetime of a case under atmospheric drag",
+        description=(
+            "Years until the perigee of CASE's orbit falls to the re-entry altitude, with the "
+            "exponential atmosphere at the case's solar-activity level and the spacecraft's "
+            "ballistic coefficient. Preliminary analysis: lifetime predictions carry large "
+            "uncertainty and must not be the only basis of a disposal-compliance claim."
+        ),
+    )
+    verb.add_argument("case", metavar="CASE", help="the case file (*.case.json)")
+    verb.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    verb.add_argument(
+        "--method",
+        choices=("orbit-averaged", "numerical"),
+        default="orbit-averaged",
+        help="orbit-averaged decay (default, any span) or Cowell propagation (days to months)",
+    )
+    verb.add_argument(
+        "--max-years",
+        type=float,
+        default=None,
+        metavar="YEARS",
+        help="longest span searched (default 200 orbit-averaged, 2 numerical)",
+    )
+    verb.set_defaults(run=run_lifetime)
+
+
+@contextmanager
+def _progress_bar(enabled: bool) -> Iterator[Callable[[float], None] | None]:
+    """A tqdm bar on stderr fed with fractions 0..1, or None when stderr is no terminal."""
+    if not enabled or not sys.stderr.isatty():
+        yield None
+        return
+    from tqdm import tqdm
+
+    with tqdm(total=100, file=sys.stderr, unit="%", desc="lifetime", leave=False) as bar:
+
+        def update(fraction: float) -> None:
+            bar.update(int(round(fraction * 100)) - bar.n)
+
+        yield update
+
+
+def lifetime_data(
+    case: Any,
+    *,
+    method: str = "orbit-averaged",
+    max_years: float | None = None,
+    progress: Callable[[float], None] | None = None,
+) -> dict[str, Any]:
+    """The lifetime of a validated ``Case`` as plain data (JSON-ready), assumptions included."""
+    from ..kernel.errors import InputError
+    from ..kernel.forces import ballistic_coefficient_kg_m2
+    from ..kernel.lifetime import lifetime_years
+    from ..kernel.timescales import utc_iso
+
+    body = case.body_constants()
+    if body.name.lower() != "earth":
+        raise InputError("body.name", body.name, "lifetime uses the Earth's atmosphere model")
+    craft = case.spacecraft
+    if craft is None:
+        raise InputError(
+            "spacecraft",
+            InputError.MISSING,  # type: ignore[attr-defined]
+            "lifetime needs the spacecraft section (mass_kg, drag_area_m2, drag_coefficient)",
+        )
+    b = float(
+        ballistic_coefficient_kg_m2(craft.mass_kg, craft.drag_area_m2, craft.drag_coefficient)
+    )
+    disposal = case.budget.disposal if case.budget is not None else None
+    reentry_km = disposal.reentry_altitude_km if disposal is not None else _DEFAULT_REENTRY_KM
+    elements = case.elements()
+    result = lifetime_years(
+        elements,
+        ballistic_coefficient_kg_m2=b,
+        solar_activity=case.force_model.solar_activity,
+        reentry_altitude_km=reentry_km,
+        method=method,
+        max_years=max_years,
+        body=body,
+        progress=progress,
+    )
+    jd1, jd2 = case.epoch_jd_utc()
+    data: dict[str, Any] = {
+        "title": case.meta.title,
+        "epoch_utc": case.epoch_utc,
+        "perigee_alt_km": float(result.perigee_alt_km[0]),
+        "apogee_alt_km": float(result.apogee_alt_km[0]),
+        "method": result.method,
+        "reentered": result.reentered,
+        "lifetime_years": result.years if result.reentered else None,
+        "lifetime_days": result.days if result.reentered else None,
+        "reentry_epoch_utc": (
+            str(utc_iso(jd1, jd2 + result.days, 0)) if result.reentered else None
+        ),
+        "searched_years": result.max_years,
+        "assumptions": dict(result.assumptions),
+        "caution": result.caution,
+    }
+    if disposal is not None:
+        limit = disposal.lifetime_limit_years
+        data["lifetime_limit_years"] = limit
+        data["within_limit_preliminary"] = bool(result.reentered and result.years <= limit)
+    return data
+
+
+def _format_years(data: dict[str, Any]) -> str:
+    if not data["reentered"]:
+        return f"more than {data['searched_years']:g} years (no re-entry within the span searched)"
+    years, days = data["lifetime_years"], data["lifetime_days"]
+    return f"{years:.2f} years ({days:.1f} days), re-entry about {data['reentry_epoch_utc']}"
+
+
+def lifetime_table(data: dict[str, Any]) -> str:
+    """The lifetime as aligned text lines for a terminal."""
+    rows = [
+        ("case", data["title"]),
+        ("epoch (UTC)", data["epoch_utc"]),
+        (
+            "perigee / apogee height",
+            f"{data['perigee_alt_km']:.1f} / {data['apogee_alt_km']:.1f} km",
+        ),
+        ("orbital lifetime", _format_years(data)),
+    ]
+    if "lifetime_limit_years" in data:
+        verdict = "within" if data["within_limit_preliminary"] else "NOT within"
+        rows.append(
+            ("disposal limit", f"{data['lifetime_limit_years']:g} years: {verdict} (preliminary)")
+        )
+    rows.extend((name.replace("_", " "), text) for name, text in data["assumptions"].items())
+    width = max(len(name) for name, _ in rows)
+    lines = [f"{name:<{width}}  {text}" for name, text in rows]
+    lines.append("")
+    lines.append(f"Caution: {data['caution']}")
+    return "\n".join(lines)
+
+
+def run_lifetime(args: argparse.Namespace) -> int:
+    from ..case import load_case
+    from ..kernel.errors import InputError
+
+    if args.max_years is not None and not (math.isfinite(args.max_years) and args.max_years > 0):
+        raise InputError("--max-years", args.max_years, "must be a positive number of years")
+    case = load_case(args.case)
+    try:
+        with _progress_bar(args.method == "numerical") as progress:
+            data = lifetime_data(
+                case, method=args.method, max_years=args.max_years, progress=progress
+            )
+    except InputError as err:
+        if err.file is not None:
+            raise
+        raise InputError(err.field, err.value, err.reason, file=str(args.case)) from None
+    if args.json:
+        print(json.dumps(data, indent=2, sort_keys=True, allow_nan=False))
+    else:
+        print(lifetime_table(data))
+    return 0
