@@ -1,0 +1,206 @@
+"""The nbconvert exporter of calculation records: ``jupyter nbconvert --to orbitrecord``.
+
+Registered through the ``nbconvert.exporters`` entry point, so nbconvert and JupyterLab's
+"Save and Export Notebook As" menu offer it. Given a notebook alone (from nbconvert or
+JupyterLab) it runs the study from a clean kernel in the notebook's folder to collect the
+record, like ``orbitledger build`` but without a ledger: the record says "unrecorded".
+``orbitledger build`` passes the record it assembled in ``resources["orbitledger_record"]``.
+
+Safety: the Jinja environment autoescapes every value; markdown is rendered with raw HTML
+disabled and the result cleaned with bleach; HTML outputs are cleaned with bleach; JavaScript
+outputs are dropped; SVG is shown through ``<img>`` (where scripts never run).
+"""
+
+from __future__ import annotations
+
+import base64
+import copy
+import json
+import re
+from pathlib import Path
+from typing import Any
+
+import bleach
+import mistune
+from markupsafe import Markup
+from nbconvert.exporters import HTMLExporter
+from traitlets import default
+
+from .build import FIGURE_MIME
+from .templating import record_context
+
+__all__ = ["OrbitRecordExporter", "TEMPLATES_DIR", "safe_markdown", "sanitize_html"]
+
+TEMPLATES_DIR = Path(__file__).resolve().parent.parent / "templates"
+if not (TEMPLATES_DIR / "orbitrecord").is_dir():  # installed as a wheel: package data
+    import orbitledger.templates as _templates
+
+    TEMPLATES_DIR = Path(_templates.__file__).resolve().parent
+
+RESULT_MIME = "application/vnd.orbitledger.result+json"
+
+# Tags and attributes kept from user HTML (tables from pandas, simple text markup).
+_TAGS = sorted(
+    set(bleach.sanitizer.ALLOWED_TAGS)
+    | {"p", "div", "span", "br", "hr", "pre", "code", "h1", "h2", "h3", "h4", "h5", "h6"}
+    | {"table", "thead", "tbody", "tfoot", "tr", "th", "td", "caption", "colgroup", "col"}
+    | {"sub", "sup", "dl", "dt", "dd", "del", "img"}
+)
+_ATTRS = {
+    "*": ["class", "title"],
+    "a": ["href", "title"],
+    "th": ["colspan", "rowspan", "align"],
+    "td": ["colspan", "rowspan", "align"],
+    "img": ["src", "alt", "width", "height"],
+    "abbr": ["title"],
+}
+_PROTOCOLS = ["http", "https", "mailto", "data"]
+
+_markdown = mistune.create_markdown(escape=True, plugins=["table", "strikethrough"])
+
+
+def _img_src_ok(tag: str, name: str, value: str) -> bool:
+    """Attribute filter: ``data:`` only as an image source of a raster type, never a link."""
+    if tag == "img" and name == "src":
+        return value.startswith(("data:image/png", "data:image/jpeg", "data:image/gif"))
+    if value.strip().lower().startswith("data:"):
+        return False
+    return name in _ATTRS.get(tag, []) or name in _ATTRS["*"]
+
+
+_cleaner = bleach.sanitizer.Cleaner(
+    tags=_TAGS,
+    attributes=_img_src_ok,
+    protocols=_PROTOCOLS,
+    strip=True,
+    strip_comments=True,
+)
+
+
+_SCRIPT_OR_STYLE = re.compile(r"<(script|style)\b.*?</\1\s*>", re.IGNORECASE | re.DOTALL)
+
+
+def sanitize_html(text: str) -> Markup:
+    """User HTML with scripts, event handlers, styles and unsafe URLs removed."""
+    return Markup(_cleaner.clean(_SCRIPT_OR_STYLE.sub("", str(text))))
+
+
+def safe_markdown(text: str) -> Markup:
+    """Markdown to HTML with raw HTML shown as text, then cleaned (links: http/https/mailto)."""
+    return Markup(_cleaner.clean(_markdown(str(text))))
+
+
+def json_for_script(value: Any) -> Markup:
+    """JSON safe inside ``<script type="application/json">``: ``<``, ``>``, ``&`` as escapes."""
+    text = (
+        value if isinstance(value, str) else json.dumps(value, sort_keys=True, ensure_ascii=False)
+    )
+    text = text.replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")
+    return Markup(text.replace("\u2028", "\\u2028").replace("\u2029", "\\u2029"))
+
+
+def _b64(text: str) -> str:
+    return base64.b64encode(text.encode("utf-8")).decode("ascii")
+
+
+_DROP_MIMES = ("application/vnd.bokehjs_load.v0+json", "application/vnd.bokehjs_exec.v0+json")
+
+
+def prepare_outputs(nb: Any) -> Any:
+    """A copy of ``nb`` fit for the record: figures numbered, live-only outputs removed."""
+    nb = copy.deepcopy(nb)
+    number = 0
+    for cell in nb.cells:
+        if cell.cell_type != "code":
+            continue
+        kept = []
+        for output in cell.get("outputs", []):
+            data = output.get("data", {})
+            if FIGURE_MIME in data:
+                number += 1
+                output["data"] = {FIGURE_MIME: data[FIGURE_MIME]}
+                output.setdefault("metadata", {})["orbitledger_figure_number"] = number
+            elif RESULT_MIME in data:
+                output["data"] = {RESULT_MIME: data[RESULT_MIME]}
+            elif any(m in data for m in _DROP_MIMES):
+                continue  # BokehJS loader or live view: the record embeds its own copy
+            elif output.get("output_type") in ("display_data", "execute_result") and not data:
+                continue
+            kept.append(output)
+        cell["outputs"] = kept
+    return nb
+
+
+class OrbitRecordExporter(HTMLExporter):
+    """HTML calculation record (templates ``orbitrecord``), offline and self-contained."""
+
+    export_from_notebook = "Orbit calculation record"
+
+    @default("template_name")
+    def _template_name_default(self) -> str:
+        return "orbitrecord"
+
+    @default("extra_template_basedirs")
+    def _extra_template_basedirs_default(self) -> list[str]:
+        return [str(TEMPLATES_DIR)]
+
+    @default("file_extension")
+    def _file_extension_default(self) -> str:
+        return ".html"
+
+    @default("template_file")
+    def _template_file_default(self) -> str:
+        return "index.html.j2"
+
+    @property
+    def default_config(self) -> Any:
+        config = super().default_config
+        config.NbConvertBase.display_data_priority = [
+            FIGURE_MIME,
+            RESULT_MIME,
+            "text/html",
+            "text/markdown",
+            "image/svg+xml",
+            "image/png",
+            "image/jpeg",
+            "text/latex",
+            "text/plain",
+        ]
+        config.HighlightMagicsPreprocessor.enabled = True
+        config.CSSHTMLHeaderPreprocessor.enabled = False
+        return config
+
+    def _create_environment(self) -> Any:
+        env = super()._create_environment()
+        env.autoescape = True
+        return env
+
+    def default_filters(self) -> Any:
+        yield from super().default_filters()
+        yield ("markdown2html", lambda text: safe_markdown(text))
+        yield ("safe_markdown", safe_markdown)
+        yield ("sanitize_html", sanitize_html)
+        yield ("json_for_script", json_for_script)
+        yield ("b64", _b64)
+
+    def from_notebook_node(
+        self, nb: Any, resources: dict[str, Any] | None = None, **kw: Any
+    ) -> Any:
+        resources = dict(resources or {})
+        record = resources.get("orbitledger_record")
+        if record is None:
+            nb, record = self._run_study(nb, resources)
+        prepared = prepare_outputs(nb)
+        resources["orbitledger"] = record_context(record, prepared)
+        return super().from_notebook_node(prepared, resources, **kw)
+
+    def _run_study(self, nb: Any, resources: dict[str, Any]) -> tuple[Any, dict[str, Any]]:
+        """No record given (nbconvert, JupyterLab): run the study headless, no ledger."""
+        from .build import assemble_record, execute_study
+
+        meta = resources.get("metadata", {})
+        folder = Path(meta.get("path") or ".").resolve()
+        name = meta.get("name") or "study"
+        executed, manifest = execute_study(nb, folder, name=f"{name}.ipynb", progress=False)
+        record = assemble_record(folder / f"{name}.ipynb", executed, manifest)
+        return executed, record

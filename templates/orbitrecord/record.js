@@ -1,0 +1,41 @@
+/* orbitledger record: draw the figures (BokehJS inlined above), the code toggle, and a flag
+   the PDF printer waits for: document.body.dataset.figures = "ready" once every figure drew. */
+(function () {
+  "use strict";
+  var body = document.body;
+  var button = document.getElementById("toggle-code");
+  if (button) {
+    button.addEventListener("click", function () {
+      var shown = body.classList.toggle("show-code");
+      button.textContent = shown ? "Hide code" : "Show code";
+      button.setAttribute("aria-pressed", shown ? "true" : "false");
+    });
+  }
+  var specs = Array.prototype.slice.call(document.querySelectorAll("script.orbitledger-figure"));
+  body.dataset.figureCount = String(specs.length);
+  if (specs.length === 0) { body.dataset.figures = "ready"; return; }
+  if (typeof window.Bokeh === "undefined") { body.dataset.figures = "failed: BokehJS missing"; return; }
+  var pending = specs.map(function (el) {
+    var item = JSON.parse(el.textContent);
+    return Promise.resolve(window.Bokeh.embed.embed_item(item, el.dataset.target));
+  });
+  function painted() {  /* two animation frames after the views exist: the canvases are drawn */
+    return new Promise(function (done) {
+      requestAnimationFrame(function () { requestAnimationFrame(done); });
+    });
+  }
+  Promise.all(pending).then(painted).then(function () {
+    body.dataset.figures = "ready";
+  }).catch(function (err) {
+    body.dataset.figures = "failed: " + err;
+  });
+  /* Fit wide figures to the printed page width (the PDF printer calls this). */
+  window.orbitledgerFitFigures = function (widthPx) {
+    document.querySelectorAll(".figure-host").forEach(function (host) {
+      var inner = host.firstElementChild;
+      if (!inner) { return; }
+      var w = inner.getBoundingClientRect().width;
+      if (w > widthPx) { host.style.zoom = String(widthPx / w); }
+    });
+  };
+})();
