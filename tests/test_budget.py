@@ -81,7 +81,6 @@ def test_budget_margin_and_cumulative_mass():
     assert bud.as_dict()["lines"][2]["name"] == "station keeping"
 
 
-@pytest.mark.slow
 def test_disposal_brings_lifetime_under_the_limit():
     el = Elements(R_E + 540.0, 0.001, 97.5, 30.0, 90.0, 0.0)
     b = 48.0 / (2.2 * 0.12)
