@@ -16,7 +16,7 @@ from .constants import (
     TROPICAL_YEAR_DAYS,
     Body,
 )
-from .elements import Elements
+from .elements import Elements, elements_to_state, state_to_elements
 from .errors import InputError
 
 # Each concept's module adds its public names below this line.
