@@ -4,7 +4,8 @@
 opens the editor on a case file. See docs/widgets.md.
 """
 
+from .casefigures import case_figures
 from .compare import compare, trade_table
 from .editor import CaseEditor
 
-__all__ = ["CaseEditor", "compare", "trade_table"]
+__all__ = ["CaseEditor", "case_figures", "compare", "trade_table"]

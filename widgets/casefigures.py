@@ -22,7 +22,14 @@ import numpy as np
 
 from orbitledger import kernel
 
-__all__ = ["CASE_FIGURES", "CaseFigure", "case_ephemeris", "case_track", "overlay_figures"]
+__all__ = [
+    "CASE_FIGURES",
+    "CaseFigure",
+    "case_ephemeris",
+    "case_figures",
+    "case_track",
+    "overlay_figures",
+]
 
 
 @dataclass(frozen=True)
@@ -196,6 +203,19 @@ def _label(case: Any) -> str:
 
 
 CASE_FIGURES: Callable[[], list[CaseFigure]] = _figures
+
+
+def case_figures(case: Any, *, theme: str = "light") -> dict[str, Any]:
+    """Every figure of ``case`` that applies to it, by name: the figures the editor shows,
+    for a notebook to pass to ``orbitledger.figures.show`` (and so to the record)."""
+    case = case.case if hasattr(case, "case") and hasattr(case, "save") else case
+    out = {}
+    for fig in CASE_FIGURES():
+        try:
+            out[fig.name] = fig.build(case, theme)
+        except ValueError:
+            continue  # e.g. a propagator the live figures do not offer yet: the editor says so
+    return out
 
 
 def overlay_figures(cases: Sequence[Any], labels: Sequence[str], *, theme: str = "light") -> list:

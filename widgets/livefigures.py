@@ -101,10 +101,9 @@ def sync_model(screen: Model, fresh: Model) -> bool:
             if _data_changed(old.data, new.data):
                 old.data = dict(new.data)
             continue
-        refs = old.properties_with_refs()
         for name, value in new.properties_with_values(include_defaults=False).items():
-            if name in refs or name in ("id", "name", "subscribed_events"):
-                continue
+            if name in ("id", "name", "subscribed_events") or next(_models_in(value), None):
+                continue  # models are synced as models of their own, in the walk
             descriptor: PropertyDescriptor = old.lookup(name)
             if descriptor.readonly:
                 continue

@@ -1,0 +1,220 @@
+"""The example study in a real browser: JupyterLab and Notebook 7, headless Chromium.
+
+Starts the front end on 127.0.0.1 (a free port, a random token) over a temporary copy of
+examples/, opens the study notebook with playwright, runs every cell, types a new eccentricity
+into the editor, and checks what an analyst would see: the periapsis altitude shown changes to
+the value of r_p = a (1 - e) (Vallado, Fundamentals of Astrodynamics and Applications, 4th ed.,
+Eq. 2-57, with the WGS-84 equatorial radius 6378.137 km, NIMA TR8350.2 Table 3.1), and the
+orbit figure's canvas is redrawn (its pixels differ). Screenshots are test artefacts (under the
+pytest tmp dir; copied to $ORBITLEDGER_ARTIFACTS when set). With $ORBITLEDGER_SCREENSHOTS set
+to a folder, the JupyterLab run also writes the editor screenshots used in docs/widgets.md
+(light and dark theme).
+"""
+
+from __future__ import annotations
+
+import io
+import logging
+import os
+import secrets
+import shutil
+import signal
+import socket
+import subprocess
+import sys
+import time
+import urllib.request
+from pathlib import Path
+
+import pytest
+
+pytestmark = [pytest.mark.browser, pytest.mark.slow]
+
+log = logging.getLogger(__name__)
+EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
+NOTEBOOK = "kestrel2-orbit-study.ipynb"
+CHROMIUM = shutil.which("chromium") or "/usr/bin/chromium"
+R_EQ_KM = 6378.137  # WGS-84 (NIMA TR8350.2, Table 3.1)
+
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+class Server:
+    """A Jupyter front-end server of our own (lab or notebook), stopped on exit."""
+
+    def __init__(self, app: str, root: Path, home: Path) -> None:
+        self.port, self.token = _free_port(), secrets.token_hex(16)
+        env = dict(os.environ)
+        env.update(
+            JUPYTER_RUNTIME_DIR=str(home / "runtime"),
+            JUPYTERLAB_SETTINGS_DIR=str(home / "settings"),
+            JUPYTERLAB_WORKSPACES_DIR=str(home / "workspaces"),
+            JUPYTER_CONFIG_DIR=str(home / "config"),
+            JUPYTER_PLATFORM_DIRS="1",
+        )
+        self.log_path = home / f"{app}.log"
+        self._log = open(self.log_path, "wb")  # noqa: SIM115 - closed in stop()
+        self.proc = subprocess.Popen(
+            [
+                sys.executable,
+                "-m",
+                "jupyter",
+                app,
+                "--no-browser",
+                f"--ServerApp.token={self.token}",
+                "--ServerApp.ip=127.0.0.1",
+                f"--ServerApp.port={self.port}",
+                f"--ServerApp.root_dir={root}",
+                "--ServerApp.port_retries=0",
+            ],
+            stdout=self._log,
+            stderr=subprocess.STDOUT,
+            env=env,
+            start_new_session=True,
+        )
+        self._wait_ready()
+
+    def url(self, path: str) -> str:
+        return f"http://127.0.0.1:{self.port}/{path}?token={self.token}"
+
+    def _wait_ready(self, timeout_s: float = 60.0) -> None:
+        deadline = time.monotonic() + timeout_s
+        while time.monotonic() < deadline:
+            if self.proc.poll() is not None:
+                raise RuntimeError(f"server exited: {self.log_path.read_text()[-2000:]}")
+            try:
+                with urllib.request.urlopen(self.url("api/status"), timeout=2) as reply:
+                    if reply.status == 200:
+                        return
+            except OSError:
+                time.sleep(0.3)
+        raise RuntimeError("the Jupyter server did not start within 60 s")
+
+    def stop(self) -> None:
+        if self.proc.poll() is None:
+            os.killpg(self.proc.pid, signal.SIGTERM)  # our own server's process group
+            try:
+                self.proc.wait(timeout=15)
+            except subprocess.TimeoutExpired:
+                os.killpg(self.proc.pid, signal.SIGKILL)
+                self.proc.wait(timeout=5)
+        self._log.close()
+
+
+def _pixels(png: bytes):
+    try:
+        from PIL import Image
+    except ImportError:  # compare the encoded bytes instead (same encoder, same size)
+        return png
+    return Image.open(io.BytesIO(png)).convert("RGB").tobytes()
+
+
+def _artefact(tmp_path: Path, name: str, png: bytes) -> Path:
+    path = tmp_path / name
+    path.write_bytes(png)
+    target = os.environ.get("ORBITLEDGER_ARTIFACTS")
+    if target:
+        Path(target).mkdir(parents=True, exist_ok=True)
+        shutil.copy(path, Path(target) / name)
+    return path
+
+
+def _launch(playwright, tmp_path: Path):
+    args = [
+        "--disable-gpu",
+        "--disable-background-networking",
+        "--disable-component-update",
+        "--disable-sync",
+        "--no-first-run",
+        f"--user-data-dir={tmp_path / 'chromium'}",
+    ]
+    if os.geteuid() == 0:
+        log.warning("running as root: Chromium started with --no-sandbox (CI or container)")
+        args.insert(0, "--no-sandbox")
+    return playwright.chromium.launch(executable_path=CHROMIUM, args=args)
+
+
+def _run_all(page) -> None:
+    page.locator(".lm-MenuBar-itemLabel", has_text="Run").first.click()
+    page.locator(".lm-Menu-itemLabel", has_text="Run All Cells").first.click()
+
+
+def _periapsis_text(page) -> str:
+    cell = page.locator('.ol-editor tr[data-result="periapsis_alt_km"] td.ol-num').first
+    return cell.inner_text().replace("\u2009", "").strip()
+
+
+def _wait_for(predicate, timeout_s: float, what: str) -> None:
+    deadline = time.monotonic() + timeout_s
+    while time.monotonic() < deadline:
+        if predicate():
+            return
+        time.sleep(0.2)
+    raise AssertionError(f"timed out after {timeout_s:.0f} s waiting for {what}")
+
+
+@pytest.mark.parametrize(
+    ("app", "path"), [("lab", f"lab/tree/{NOTEBOOK}"), ("notebook", f"notebooks/{NOTEBOOK}")]
+)
+def test_edit_in_the_browser(app: str, path: str, tmp_path: Path) -> None:
+    if not Path(CHROMIUM).exists():
+        pytest.skip("chromium is not installed (CI installs Debian's chromium)")
+    sync_api = pytest.importorskip("playwright.sync_api")
+    root = tmp_path / "study"
+    shutil.copytree(EXAMPLES, root)
+    (tmp_path / "home").mkdir()
+    server = Server(app, root, tmp_path / "home")
+    try:
+        with sync_api.sync_playwright() as p:
+            browser = _launch(p, tmp_path)
+            try:
+                page = browser.new_page(viewport={"width": 1500, "height": 1000})
+                page.goto(server.url(path))
+                page.locator(".jp-Notebook").first.wait_for(timeout=60_000)
+                page.locator(
+                    ".jp-Notebook-ExecutionIndicator[data-status='idle'], "
+                    ".jp-KernelStatus-success, .jp-Toolbar-kernelStatus"
+                ).first.wait_for(timeout=60_000)
+                time.sleep(1.0)
+                _run_all(page)
+                editor = page.locator(".ol-editor").first
+                editor.wait_for(timeout=90_000)
+                figure = editor.locator(".ol-figure canvas").first
+                figure.wait_for(timeout=60_000)
+                before_text = _periapsis_text(page)
+                editor.scroll_into_view_if_needed()
+                time.sleep(1.0)  # let BokehJS finish its first paint
+                before_png = editor.locator(".ol-figure").first.screenshot()
+                _artefact(tmp_path, f"{app}-editor-before.png", editor.screenshot())
+
+                field = editor.get_by_label("Eccentricity", exact=True)
+                field.fill("0.05")
+                field.press("Tab")
+                _wait_for(lambda: _periapsis_text(page) != before_text, 30, "the new periapsis")
+                after_text = _periapsis_text(page)
+                a_km = R_EQ_KM + 540.0
+                expected = a_km * (1 - 0.05) - R_EQ_KM  # Vallado Eq. 2-57
+                assert abs(float(after_text) - expected) < 0.01  # shown to 10 m or better
+                time.sleep(1.0)
+                after_png = editor.locator(".ol-figure").first.screenshot()
+                assert _pixels(after_png) != _pixels(before_png), "the canvas was not redrawn"
+                shot = editor.screenshot()
+                _artefact(tmp_path, f"{app}-editor-after.png", shot)
+                docs = os.environ.get("ORBITLEDGER_SCREENSHOTS")
+                if docs and app == "lab":
+                    Path(docs).mkdir(parents=True, exist_ok=True)
+                    Path(docs, "editor-light.png").write_bytes(shot)
+                    page.locator(".lm-MenuBar-itemLabel", has_text="Settings").first.click()
+                    page.locator(".lm-Menu-itemLabel", has_text="Theme").first.hover()
+                    page.locator(".lm-Menu-itemLabel", has_text="JupyterLab Dark").first.click()
+                    time.sleep(2.0)
+                    Path(docs, "editor-dark.png").write_bytes(editor.screenshot())
+            finally:
+                browser.close()
+    finally:
+        server.stop()
+    assert server.proc.poll() is not None

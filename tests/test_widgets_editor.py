@@ -1,0 +1,220 @@
+"""The case editor's logic without a front end: edits, refusals, form switching, undo/redo,
+atomic saves and the changed-on-disk question.
+
+Reference values: the WGS-84 equatorial radius 6378.137 km (NIMA TR8350.2, 3rd ed., Table 3.1)
+and the Earth's GM 398600.4418 km^3/s^2 (WGS-84, same table), with the conic relations
+r_p = a (1 - e), the orbit equation r = p / (1 + e cos nu) and vis-viva v^2 = mu (2/r - 1/a)
+(Vallado, Fundamentals of Astrodynamics and Applications, 4th ed., Eqs. 2-57 and 2-61).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import shutil
+from pathlib import Path
+
+import numpy as np
+import pytest
+from orbitledger.widgets import CaseEditor
+
+import orbitledger
+from orbitledger.case import CaseError, CaseFileChanged, load_case
+
+EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
+R_EQ_KM = 6378.137  # WGS-84 equatorial radius (NIMA TR8350.2, Table 3.1)
+MU_KM3_S2 = 398600.4418  # WGS-84 GM of the Earth (NIMA TR8350.2, Table 3.1)
+MM = 1e-6  # one millimetre in km
+
+
+@pytest.fixture
+def case_path(tmp_path: Path) -> Path:
+    path = tmp_path / "candidate-a.case.json"
+    shutil.copy(EXAMPLES / "candidate-a.case.json", path)
+    return path
+
+
+@pytest.fixture
+def editor(case_path: Path) -> CaseEditor:
+    return orbitledger.open_case(case_path).editor()
+
+
+def _periapsis_alt_km(altitude_km: float, e: float) -> float:
+    a = R_EQ_KM + altitude_km  # altitude_km is a - R_eq (docs/case-file.md)
+    return a * (1.0 - e) - R_EQ_KM
+
+
+def test_opening_shows_the_case_and_its_results(editor: CaseEditor) -> None:
+    assert editor.case.orbit.altitude_km == 540.0
+    # r_p = a (1 - e), Vallado 4th ed. Eq. 2-57; R_eq from WGS-84.
+    assert abs(editor.summary["periapsis_alt_km"] - _periapsis_alt_km(540.0, 0.001)) < MM
+    assert editor.fields["orbit.e"].input.value == "0.001"
+    assert editor.fields["orbit.i_deg"].unit == "deg"
+    assert editor.fields["orbit.altitude_km"].unit == "km"
+    assert editor.fields["spacecraft.mass_kg"].unit == "kg"
+    assert 'data-result="periapsis_alt_km"' in editor.results_panel.table.value
+
+
+def test_apply_saves_and_updates_the_results(editor: CaseEditor, case_path: Path) -> None:
+    editor.apply({"orbit.e": 0.02})
+    assert editor.case.orbit.e == 0.02
+    assert load_case(case_path).orbit.e == 0.02  # the edit is in the file
+    assert abs(editor.summary["periapsis_alt_km"] - _periapsis_alt_km(540.0, 0.02)) < MM
+    assert editor.fields["orbit.e"].input.value == "0.02"
+    assert 'data-result="periapsis_alt_km"' in editor.results_panel.table.value
+
+
+def test_a_refused_apply_changes_nothing(editor: CaseEditor, case_path: Path) -> None:
+    before_bytes = case_path.read_bytes()
+    before_case, before_summary = editor.case, dict(editor.summary)
+    before_fields = {p: f.widget.children[0].value for p, f in editor.fields.items()}
+    before_panel = editor.results_panel.table.value
+    with pytest.raises(CaseError) as refused:
+        editor.apply({"orbit.e": -0.1})
+    assert refused.value.path == "orbit.e"
+    assert editor.case is before_case
+    assert editor.summary == before_summary
+    assert case_path.read_bytes() == before_bytes
+    assert {p: f.widget.children[0].value for p, f in editor.fields.items()} == before_fields
+    assert editor.results_panel.table.value == before_panel
+    assert not editor._history.can_undo
+
+
+def test_typed_values_are_checked_beside_their_field(editor: CaseEditor, case_path: Path) -> None:
+    field = editor.fields["orbit.e"]
+    before = case_path.read_bytes()
+    field.input.value = "0.0x"  # no loop runs here, so the debounced edit applies at once
+    assert "not a number" in field.error.value
+    field.input.value = "-0.5"
+    assert field.error.value  # the model's reason, shown beside the field
+    assert "ol-invalid" in field.widget._dom_classes
+    assert case_path.read_bytes() == before and editor.case.orbit.e == 0.001
+    # Another field still works while e shows its error; the last valid case stays in force.
+    editor.fields["orbit.i_deg"].input.value = "97.6"
+    assert editor.case.i_deg if False else editor.case.orbit.i_deg == 97.6
+    assert field.input.value == "-0.5" and field.error.value
+    field.input.value = "0.03"
+    assert field.error.value == "" and editor.case.orbit.e == 0.03
+    assert load_case(case_path).orbit.e == 0.03
+
+
+def test_inclination_out_of_range_is_refused_with_the_reason(editor: CaseEditor) -> None:
+    field = editor.fields["orbit.i_deg"]
+    field.input.value = "181"
+    assert "180" in field.error.value  # inclination lies in [0, 180] deg (docs/case-file.md)
+    assert editor.case.orbit.i_deg == 97.55
+
+
+def test_form_switching_converts_exactly(editor: CaseEditor) -> None:
+    a = R_EQ_KM + 540.0
+    editor.form_choice.value = "apsides"
+    orbit = editor.case.orbit
+    assert orbit.form == "apsides"
+    assert "orbit.periapsis_alt_km" in editor.fields and "orbit.e" not in editor.fields
+    # r_p = a (1 - e), r_a = a (1 + e): Vallado 4th ed. Eq. 2-57.
+    assert abs(orbit.periapsis_alt_km - (a * (1 - 0.001) - R_EQ_KM)) < MM
+    assert abs(orbit.apoapsis_alt_km - (a * (1 + 0.001) - R_EQ_KM)) < MM
+    editor.form_choice.value = "cartesian"
+    r, v = np.array(editor.case.orbit.r_km), np.array(editor.case.orbit.v_km_s)
+    # Orbit equation r = p / (1 + e cos nu) with nu = 0, and vis-viva: Vallado Eqs. 2-57, 2-61.
+    p = a * (1 - 0.001**2)
+    assert abs(np.linalg.norm(r) - p / (1 + 0.001)) < MM
+    assert abs(np.linalg.norm(v) ** 2 - MU_KM3_S2 * (2 / np.linalg.norm(r) - 1 / a)) < 1e-9
+    assert "orbit.r_km" in editor.fields
+    editor.form_choice.value = "classical"
+    back = editor.case.elements()
+    assert abs(float(back.a_km) - a) < MM
+    assert abs(float(back.e) - 0.001) < 1e-12
+    assert abs(float(back.i_deg) - 97.55) < 1e-9  # degrees; 1e-9 deg is 3.6 micro-arcsec
+    assert len(editor._history) == 4
+
+
+def test_undo_and_redo_are_saved(editor: CaseEditor, case_path: Path) -> None:
+    editor.apply({"orbit.e": 0.01})
+    editor.apply({"orbit.i_deg": 98.0})
+    editor.undo()
+    assert editor.case.orbit.i_deg == 97.55 and editor.case.orbit.e == 0.01
+    assert load_case(case_path).orbit.i_deg == 97.55
+    assert editor.fields["orbit.i_deg"].input.value == "97.55"
+    editor.undo()
+    assert load_case(case_path).orbit.e == 0.001
+    assert editor.undo_button.disabled and not editor.redo_button.disabled
+    editor.redo()
+    editor.redo()
+    assert load_case(case_path).orbit.i_deg == 98.0 and editor.redo_button.disabled
+    with pytest.raises(IndexError):
+        editor.redo()
+
+
+def test_saves_are_atomic_and_leave_no_temporary_files(
+    editor: CaseEditor, case_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    editor.apply({"orbit.e": 0.004})
+    assert sorted(p.name for p in case_path.parent.iterdir()) == [case_path.name]
+    json.loads(case_path.read_text())  # whole, valid JSON
+    before_bytes, before_case = case_path.read_bytes(), editor.case
+
+    def failing_replace(*_args, **_kw):
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr("os.replace", failing_replace)
+    with pytest.raises(CaseError):
+        editor.apply({"orbit.e": 0.005})
+    assert case_path.read_bytes() == before_bytes  # the old file is whole
+    assert editor.case is before_case  # and the editor did not move on
+
+
+def test_changed_on_disk_asks_then_overwrites(editor: CaseEditor, case_path: Path) -> None:
+    data = json.loads(case_path.read_text())
+    data["meta"]["title"] = "Kestrel-2 candidate A, edited by a colleague"
+    case_path.write_text(json.dumps(data))
+    theirs = case_path.read_bytes()
+    with pytest.raises(CaseFileChanged):
+        editor.apply({"orbit.e": 0.002})
+    assert editor._conflict.layout.display == "flex"  # the question is on screen
+    assert case_path.read_bytes() == theirs and editor.case.orbit.e == 0.001
+    editor.fields["orbit.e"].input.value = "0.0025"  # typing meanwhile does not overwrite
+    assert case_path.read_bytes() == theirs
+    editor.overwrite()
+    assert load_case(case_path).orbit.e == 0.0025
+    assert editor._conflict.layout.display == "none"
+
+
+def test_changed_on_disk_reload_takes_the_file(editor: CaseEditor, case_path: Path) -> None:
+    data = json.loads(case_path.read_text())
+    data["orbit"]["i_deg"] = 97.4
+    case_path.write_text(json.dumps(data))
+    with pytest.raises(CaseFileChanged):
+        editor.apply({"orbit.e": 0.002})
+    editor.reload_from_disk()
+    assert editor.case.orbit.i_deg == 97.4 and editor.case.orbit.e == 0.001
+    assert editor.fields["orbit.i_deg"].input.value == "97.4"
+    editor.apply({"orbit.e": 0.002})  # saving works again, on top of the colleague's edit
+    assert load_case(case_path).orbit.i_deg == 97.4 and load_case(case_path).orbit.e == 0.002
+
+
+def test_station_table_add_edit_remove(editor: CaseEditor, case_path: Path) -> None:
+    table = editor.stations
+    table.add_button.click()
+    assert len(editor.case.stations) == 4 and len(load_case(case_path).stations) == 4
+    lat_cell = table.rows[3].children[1]
+    lat_cell.value = "95"  # latitude in [-90, 90] deg (docs/case-file.md)
+    assert "90" in table.errors[3].value and editor.case.stations[3].lat_deg == 0.0
+    lat_cell.value = "-33.9"
+    assert editor.case.stations[3].lat_deg == -33.9 and table.errors[3].value == ""
+    table.rows[0].children[-2].click()  # Remove Harrow Fell
+    assert [s.name for s in load_case(case_path).stations][0] == "Saltmarsh Point"
+
+
+def test_duplicate_station_names_are_refused(editor: CaseEditor) -> None:
+    name_cell = editor.stations.rows[1].children[0]
+    name_cell.value = "Harrow Fell"  # station names are unique (docs/case-file.md)
+    assert editor.stations.errors[1].value or editor.stations.message.value
+    assert editor.case.stations[1].name == "Saltmarsh Point"
+
+
+def test_summary_follows_the_orbit_equation_after_an_altitude_edit(editor: CaseEditor) -> None:
+    editor.apply({"orbit.altitude_km": 600.0, "orbit.e": 0.0})
+    a = R_EQ_KM + 600.0
+    # Circular orbit: T = 2 pi sqrt(a^3 / mu) (Kepler's third law, Vallado Eq. 2-29).
+    assert abs(editor.summary["period_s"] - 2 * math.pi * math.sqrt(a**3 / MU_KM3_S2)) < 1e-6
