@@ -17,6 +17,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ..kernel.errors import InputError
+from ..kernel.groundtrack import antimeridian_crossings
 
 __all__ = [
     "coastline_lon_lat",
@@ -64,6 +65,10 @@ def split_at_antimeridian(
 ) -> tuple[np.ndarray, ...]:
     """Break a lon/lat polyline where it crosses the antimeridian, for plotting.
 
+    The kernel's ``GroundTrack.plot_lon_lat`` does this for a track's longitude and latitude;
+    this form carries further columns along (the tooltip's times and heights) and serves the
+    visibility circles too. Crossings are found by ``kernel.groundtrack.antimeridian_crossings``.
+
     Given longitudes in [-180, 180] deg, latitudes (deg) and optional further per-point columns
     (times, heights...). Where consecutive longitudes jump by more than 180 deg the track has
     crossed +-180: a point is interpolated on the edge it leaves, a NaN row breaks the line, and
@@ -78,8 +83,8 @@ def split_at_antimeridian(
         raise InputError("lat_deg", len(lat), "every column must have one value per longitude")
     if len(lon) < 2:
         return (lon, lat, *extra)
+    jumps = antimeridian_crossings(lon)  # the kernel's test; NaN differences compare False
     step = np.diff(lon)
-    jumps = np.flatnonzero(np.abs(step) > 180.0)  # NaN differences compare False
     if len(jumps) == 0:
         return (lon, lat, *extra)
     # Crossing eastward (+180 -> -180) has step < -180: leave at +180, re-enter at -180.

@@ -14,7 +14,8 @@ never has to remember it. INLINE keeps the notebook and the record working offli
 
 Names are unique per study: a second figure under a name already shown is refused with an
 ``InputError``, except when the same notebook cell runs again (JupyterLab and Notebook 7 send the
-cell's id with each execution), which replaces its own figure.
+cell's id with each execution), which replaces its own figure. ``orbitledger.study.reset()``
+starts a new study: its names are free again.
 """
 
 from __future__ import annotations
@@ -103,6 +104,8 @@ def _check_name(name: str, caption: str) -> ShownFigure:
     cell_id, count = _current_cell()
     entry = ShownFigure(name=name, caption=caption, cell_id=cell_id, execution_count=count)
     previous = _shown.get(name)
+    if previous is not None and not _study_still_has(name):
+        previous = None  # the study was reset (orbitledger.study.reset): a new study
     if previous is not None:
         rerun = (
             cell_id is not None
@@ -117,6 +120,16 @@ def _check_name(name: str, caption: str) -> ShownFigure:
                 "its own name",
             )
     return entry
+
+
+def _study_still_has(name: str) -> bool:
+    """Whether the study registry still lists ``name`` (True when it keeps no figure list)."""
+    from .. import study
+
+    manifest = getattr(study, "manifest", None)
+    if manifest is None:
+        return True
+    return any(f.get("name") == name for f in manifest().get("figures", []))
 
 
 def show(fig, name: str, caption: str = "") -> None:

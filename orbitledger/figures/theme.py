@@ -23,6 +23,7 @@ __all__ = [
     "style_figure",
     "tooltip",
     "add_hover",
+    "caption_lines",
     "finish_legend",
     "UNIT_PATTERN",
 ]
@@ -39,7 +40,9 @@ def axis_label(quantity: str, unit: str) -> str:
     return f"{quantity} ({unit})"
 
 
-def _checked_label(argument: str, label: str) -> str:
+def _checked_label(argument: str, label: str | None) -> str | None:
+    if label is None:  # a categorical axis (names of lines, stations): no quantity, no unit
+        return None
     if not UNIT_PATTERN.search(label):
         raise InputError(argument, label, "an axis label must end with its unit, e.g. 'x (km)'")
     return label
@@ -48,15 +51,16 @@ def _checked_label(argument: str, label: str) -> str:
 def new_figure(
     *,
     title: str,
-    x_label: str,
-    y_label: str,
+    x_label: str | None,
+    y_label: str | None,
     theme: str | Palette = "light",
     width: int = 640,
     height: int = 420,
     tools: str = _TOOLS,
     **kwargs,
 ):
-    """A styled Bokeh figure with both axes labelled with their units.
+    """A styled Bokeh figure with both axes labelled with their units (``None`` only for a
+    categorical axis, whose tick labels name its rows).
 
     ``kwargs`` go to :func:`bokeh.plotting.figure` (``x_axis_type="datetime"``,
     ``match_aspect=True``, ``y_range=[...]`` ...).
@@ -126,11 +130,28 @@ def add_hover(fig, renderers: Sequence, rows: Sequence[tuple[str, str]], **kwarg
     return hover
 
 
-def finish_legend(fig, theme: str | Palette = "light", *, location: str = "top_right") -> None:
-    """Style the legend (if any): palette colours, click to hide a series."""
+def finish_legend(
+    fig,
+    theme: str | Palette = "light",
+    *,
+    location: str = "top_right",
+    outside: str | None = None,
+) -> None:
+    """Style the legend (if any): palette colours, click to hide a series. ``outside``
+    ("right", "below", "above") moves it out of the plot area, in a row when above or below."""
     pal = palette_for(theme)
-    for legend in fig.select(type=Legend):
-        legend.location = location
+    for legend in list(fig.select(type=Legend)):
+        if outside:
+            if legend in fig.center:
+                fig.center.remove(legend)
+            fig.add_layout(legend, outside)
+            if outside in ("above", "below"):
+                legend.orientation = "horizontal"
+                legend.spacing = 12
+                legend.margin = 2
+                legend.padding = 4
+        else:
+            legend.location = location
         legend.click_policy = "hide"
         legend.background_fill_color = pal.paper
         legend.background_fill_alpha = 0.85
@@ -138,3 +159,26 @@ def finish_legend(fig, theme: str | Palette = "light", *, location: str = "top_r
         legend.label_text_color = pal.ink
         legend.label_text_font = FONT
         legend.label_text_font_size = "11px"
+
+
+def caption_lines(
+    fig, text: str, theme: str | Palette = "light", *, width_chars: int = 110, italic: bool = True
+) -> None:
+    """Add ``text`` under the plot, wrapped to lines of ``width_chars`` (a Bokeh title is one
+    line): cautions, data attributions."""
+    import textwrap
+
+    from bokeh.models import Title
+
+    pal = palette_for(theme)
+    for line in textwrap.wrap(text, width_chars):  # "below" stacks outwards, in order
+        fig.add_layout(
+            Title(
+                text=line,
+                text_font_size="9px",
+                text_color=pal.muted,
+                text_font_style="italic" if italic else "normal",
+                text_font=FONT,
+            ),
+            "below",
+        )
