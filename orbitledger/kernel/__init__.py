@@ -78,3 +78,5 @@ from .anomalies import (
     true_to_mean_anomaly,
     true_to_parabolic_anomaly,
 )
+from .burns import BurnSpec, apply_burn_plan, apply_impulse, rtn_basis, time_to_next_s
+from .porkchop import planetary_porkchop, rendezvous_porkchop, transfer_grid
