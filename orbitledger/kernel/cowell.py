@@ -210,9 +210,12 @@ def propagate_cowell(
             max_step=max_step_s,
         )
         nfev += int(sol.nfev)
-        n_kept = min(int(wanted.sum()), sol.t.size)
-        t_out.append(sol.t[:n_kept])
-        y_out.append(sol.y[:, :n_kept])
+        # scipy returns empty lists when the run stops before the first requested time
+        sol_t = np.asarray(sol.t, dtype=float).reshape(-1)
+        sol_y = np.asarray(sol.y, dtype=float).reshape(6, -1)
+        n_kept = min(int(wanted.sum()), sol_t.size)
+        t_out.append(sol_t[:n_kept])
+        y_out.append(sol_y[:, :n_kept])
         if dense_output and sol.sol is not None:
             pieces.append(sol.sol)
         if sol.status == 1:
@@ -222,10 +225,10 @@ def propagate_cowell(
             break
         if sol.status < 0:
             success, message = False, f"integrator stopped: {sol.message}"
-            t_end = float(sol.t[-1]) if sol.t.size else start
+            t_end = float(sol_t[-1]) if sol_t.size else start
             break
         t_end = stop
-        y = sol.y[:, -1]
+        y = sol_y[:, -1]
         if progress is not None:
             progress(abs(stop / t_final))
     times = np.concatenate(t_out) if t_out else np.empty(0)

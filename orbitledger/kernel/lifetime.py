@@ -281,6 +281,11 @@ def lifetime_years(
         "reentry_altitude_km": f"{reentry_altitude_km:g} (perigee height above the ellipsoid)",
         "reference_radius_km": f"{radius:.3f} (ellipsoid radius at mean sin^2 latitude)",
         "atmosphere": "co-rotating with the Earth",
+        "elements": (
+            "taken as mean elements"
+            if method == "orbit-averaged"
+            else "osculating at the epoch (J2 short-period terms move the height by up to ~20 km)"
+        ),
         "max_years": f"{max_years:g}",
     }
     return LifetimeResult(
