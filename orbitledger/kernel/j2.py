@@ -24,12 +24,15 @@ from collections.abc import Mapping
 import numpy as np
 from numpy.typing import ArrayLike
 
+from .anomalies import mean_to_true_anomaly, true_to_mean_anomaly
 from .constants import EARTH, SECONDS_PER_DAY, TROPICAL_YEAR_DAYS, Body
-from .elements import Elements
+from .elements import Elements, elements_to_state
 from .errors import InputError
 
 __all__ = [
     "SUN_MEAN_RATE_RAD_S",
+    "mean_element_states",
+    "propagate_j2_mean",
     "j2_secular_rates",
     "j2_secular_rates_rad_s",
     "sun_synchronous_inclination_deg",
@@ -118,3 +121,57 @@ def sun_synchronous_inclination_deg(
         )
     i_deg = np.degrees(np.arccos(cos_i))
     return float(i_deg) if np.ndim(i_deg) == 0 else i_deg
+
+
+def mean_element_states(
+    elements: Elements,
+    dt_s: ArrayLike,
+    raan_rate_rad_s: float,
+    argp_rate_rad_s: float,
+    m_rate_rad_s: float,
+    mu_km3_s2: float,
+) -> tuple[np.ndarray, np.ndarray]:
+    """GCRF states of an ellipse whose RAAN, argument of perigee and mean anomaly advance at
+    constant rates: the shared core of two-body (rates 0, 0, n) and J2 mean-element
+    propagation. One scalar element set, dt_s any shape; returns dt_s.shape + (3,) arrays.
+
+    The velocity is the exact time derivative of the position:
+    v = v_conic (dM/dt) / n + dRAAN/dt (z x r) + dargp/dt (h_hat x r), with v_conic the
+    two-body velocity on the instantaneous ellipse and n = sqrt(mu / a^3).
+    """
+    a, e = float(np.asarray(elements.a_km)), float(np.asarray(elements.e))
+    t = np.asarray(dt_s, dtype=float)
+    m0 = true_to_mean_anomaly(math.radians(float(np.asarray(elements.nu_deg))), e)
+    nu = mean_to_true_anomaly(m0 + m_rate_rad_s * t, e)
+    raan = float(np.asarray(elements.raan_deg)) + math.degrees(raan_rate_rad_s) * t
+    argp = float(np.asarray(elements.argp_deg)) + math.degrees(argp_rate_rad_s) * t
+    moving = Elements(a, e, float(np.asarray(elements.i_deg)), raan, argp, np.degrees(nu))
+    r, v = elements_to_state(moving, mu_km3_s2)
+    n = math.sqrt(mu_km3_s2 / a**3)
+    v = v * (m_rate_rad_s / n)
+    if raan_rate_rad_s or argp_rate_rad_s:
+        h = np.cross(r, v)
+        h_hat = h / np.linalg.norm(h, axis=-1, keepdims=True)
+        z_cross_r = np.stack([-r[..., 1], r[..., 0], np.zeros_like(r[..., 2])], axis=-1)
+        v = v + raan_rate_rad_s * z_cross_r + argp_rate_rad_s * np.cross(h_hat, r)
+    return r, v
+
+
+def propagate_j2_mean(
+    elements: Elements, dt_s: ArrayLike, body: Body = EARTH
+) -> tuple[np.ndarray, np.ndarray]:
+    """Mean-element propagation under J2: GCRF position (km) and velocity (km/s) at dt_s.
+
+    Given one set of mean elements (a_km > 0, 0 <= e < 1) at t = 0 and times dt_s (s, any
+    shape; a million epochs cost a few vectorised passes). RAAN, argument of perigee and mean
+    anomaly drift at the secular J2 rates of ``j2_secular_rates_rad_s`` (Vallado 4th ed.,
+    Eq. 9-41); a, e and i stay fixed; positions are two-body positions on the drifting ellipse.
+    Short-period J2 terms (about 10 km along track in low orbit) are left out, so this is the
+    model for ground tracks, passes and eclipses over weeks, not for precise ephemerides.
+    Osculating elements given as mean ones carry that short-period offset into the result.
+    """
+    a, e = _checked_conic(elements.a_km, elements.e, "elements.a_km", "elements.e")
+    if a.ndim or e.ndim:
+        raise InputError("elements", elements, "must be one element set (scalars)")
+    rates = j2_secular_rates_rad_s(a, e, math.radians(float(np.asarray(elements.i_deg))), body)
+    return mean_element_states(elements, dt_s, *(float(x) for x in rates), body.mu_km3_s2)

@@ -11,7 +11,7 @@ the integrator's dense output).
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -19,11 +19,13 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from .constants import EARTH, Body
+from .elements import Elements, elements_to_state
 from .errors import InputError
 from .frames import gcrf_to_itrf_state
-from .timescales import TimeScales, time_scales
+from .j2 import j2_secular_rates_rad_s, mean_element_states, propagate_j2_mean
+from .timescales import EpochLike, TimeScales, time_scales
 
-__all__ = ["PROPAGATORS", "EarthOrientation", "Trajectory"]
+__all__ = ["PROPAGATORS", "EarthOrientation", "Trajectory", "trajectory"]
 
 PROPAGATORS = ("two-body", "j2-mean", "numerical")
 
@@ -80,3 +82,123 @@ class Trajectory:
             xp_arcsec=self.eop.xp_arcsec,
             yp_arcsec=self.eop.yp_arcsec,
         )
+
+
+def _seconds_between(later: TimeScales, earlier: TimeScales) -> float:
+    return float(later.seconds_since(earlier))
+
+
+def trajectory(
+    propagator: str,
+    elements: Elements,
+    epoch_utc: EpochLike,
+    *,
+    start_utc: EpochLike | None = None,
+    duration_s: float = 86_400.0,
+    body: Body = EARTH,
+    eop: EarthOrientation | None = None,
+    force_model: Any = None,
+    cowell_options: Mapping[str, Any] | None = None,
+    progress: Callable[[float], None] | None = None,
+) -> Trajectory:
+    """The trajectory over [start, start + duration_s] of an orbit given at ``epoch_utc``.
+
+    propagator: ``"two-body"`` (Kepler), ``"j2-mean"`` (``j2.propagate_j2_mean``) or
+    ``"numerical"`` (``cowell.propagate_cowell`` with ``force_model``, a ``forces.ForceModel``,
+    and ``cowell_options`` such as rtol / atol_km; integrated once from the epoch to the window's
+    end, then read from its dense output; ``progress`` gets the fraction done). The window
+    start defaults to the epoch. Elliptic orbits only (a_km > 0, e < 1).
+    """
+    if propagator not in PROPAGATORS:
+        raise InputError(
+            "force_model.propagator", propagator, f"must be one of {', '.join(PROPAGATORS)}"
+        )
+    if not (math.isfinite(duration_s) and duration_s > 0.0):
+        raise InputError("window.duration_s", duration_s, "must be a positive number of seconds")
+    a, e = float(np.asarray(elements.a_km)), float(np.asarray(elements.e))
+    if not (a > 0.0 and 0.0 <= e < 1.0):
+        raise InputError("orbit.e", e, "time-window analyses need a closed (elliptic) orbit")
+    eop = eop or EarthOrientation()
+    epoch = time_scales(epoch_utc, dut1_s=eop.dut1_s)
+    start = (
+        epoch
+        if start_utc is None
+        else time_scales(start_utc, dut1_s=eop.dut1_s, field="window.start_utc")
+    )
+    offset0 = _seconds_between(start, epoch)
+    n = math.sqrt(body.mu_km3_s2 / a**3)
+    if propagator == "two-body":
+
+        def state_at(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+            return mean_element_states(elements, offset0 + t, 0.0, 0.0, n, body.mu_km3_s2)
+
+        return Trajectory(start, state_at, 2 * math.pi / n, propagator, eop, body)
+    if propagator == "j2-mean":
+        m_rate = float(
+            j2_secular_rates_rad_s(a, e, math.radians(float(np.asarray(elements.i_deg))), body)[2]
+        )
+
+        def state_at(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+            return propagate_j2_mean(elements, offset0 + t, body)
+
+        notes = (
+            "J2 secular drift of RAAN, argument of perigee and mean anomaly; short-period terms omitted",
+        )
+        return Trajectory(start, state_at, 2 * math.pi / m_rate, propagator, eop, body, notes=notes)
+    return _numerical(
+        elements,
+        epoch,
+        start,
+        offset0,
+        duration_s,
+        body,
+        eop,
+        force_model,
+        cowell_options,
+        progress,
+    )
+
+
+def _numerical(
+    elements, epoch, start, offset0, duration_s, body, eop, force_model, options, progress
+):
+    from .cowell import propagate_cowell
+    from .forces import ForceModel
+
+    if offset0 < 0.0:
+        raise InputError(
+            "window.start_utc",
+            None,
+            "must not precede the case epoch with the numerical propagator",
+        )
+    r0, v0 = elements_to_state(elements, body.mu_km3_s2)
+    model = force_model if force_model is not None else ForceModel(zonal_degree=2, body=body)
+    run = propagate_cowell(
+        r0,
+        v0,
+        np.array([offset0 + duration_s]),
+        force_model=model,
+        epoch_jd_tt=(float(epoch.tt1), float(epoch.tt2)),
+        progress=progress,
+        **dict(options or {}),
+    )
+    end_s = run.t_end_s - offset0
+    notes = [
+        f"Cowell (DOP853) propagation: {model.description}; rtol {run.rtol:g}, atol {run.atol_km:g} km"
+    ]
+    if run.decayed:
+        notes.append(
+            f"re-entry ({run.reentry_altitude_km:g} km) at {run.decay_time_s:.0f} s after the epoch"
+        )
+        if end_s <= 0.0:
+            raise InputError("window.start_utc", None, "the orbit decays before the window starts")
+    elif not run.success:
+        raise InputError("force_model", model.description, f"integration failed: {run.message}")
+
+    def state_at(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        return run.state_at(offset0 + np.asarray(t, dtype=float))
+
+    period = 2 * math.pi / math.sqrt(body.mu_km3_s2 / float(np.asarray(elements.a_km)) ** 3)
+    return Trajectory(
+        start, state_at, period, "numerical", eop, body, end_s=end_s, notes=tuple(notes)
+    )
