@@ -43,11 +43,13 @@ class CaseError(InputError):
 
     @property
     def message(self) -> str:
-        if self.line is not None:
+        if self.line is not None and not self.field:
             where = f"{self.file}:" if self.file else ""
             return f"{where}{self.line}:{self.column}: {self.reason}"
         if not self.field:
             return f"{self.file}: {self.reason}" if self.file else self.reason
+        if self.line is not None:
+            return f"{super().message} (line {self.line}, column {self.column})"
         return super().message
 
     def __reduce__(self):  # picklable (dask workers, multiprocessing) despite keyword arguments

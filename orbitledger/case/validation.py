@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import difflib
 import json
+import math
 import re
 import types
 import typing
@@ -90,25 +91,32 @@ def _join(path: str, key: str | int) -> str:
     return f"{path}.{key}" if path else str(key)
 
 
-class _NonFinite(ValueError):
-    pass
-
-
-def _refuse_constant(name: str) -> Any:
-    raise _NonFinite(name)
-
-
 _TOKENS = re.compile(r'"(?:[^"\\]|\\.)*"|(-?Infinity|NaN)')
 
 
-def _place_of_constant(text: str, name: str) -> tuple[int, int]:
-    """Line and column (1-based) of the first bare NaN/Infinity outside a string."""
+def _bare_constant_places(text: str) -> list[tuple[int, int]]:
+    """Line and column (1-based) of each bare NaN/Infinity outside a string, in order."""
+    places = []
     for match in _TOKENS.finditer(text):
         if match.group(1):
             start = match.start(1)
             line = text.count("\n", 0, start) + 1
-            return line, start - (text.rfind("\n", 0, start) + 1) + 1
-    return 1, 1
+            places.append((line, start - (text.rfind("\n", 0, start) + 1) + 1))
+    return places
+
+
+def _non_finite(data: Any, path: str = "") -> list[tuple[str, float]]:
+    """Every NaN or infinite number in the data, with its path, in document order."""
+    if isinstance(data, float):
+        return [] if math.isfinite(data) else [(path, data)]
+    children = (
+        data.items()
+        if isinstance(data, dict)
+        else enumerate(data)
+        if isinstance(data, list)
+        else ()
+    )
+    return [found for key, value in children for found in _non_finite(value, _join(path, key))]
 
 
 def read_json_text(text: str | bytes, file: str | None = None) -> Any:
@@ -124,17 +132,7 @@ def read_json_text(text: str | bytes, file: str | None = None) -> Any:
                 file=file,
             ) from None
     try:
-        data = json.loads(text, object_pairs_hook=_pairs_hook, parse_constant=_refuse_constant)
-    except _NonFinite as err:
-        line, column = _place_of_constant(text, str(err))
-        raise CaseError(
-            "",
-            MISSING,
-            f"{err} is not a number JSON allows (NaN and infinity are refused); write a finite number",
-            file=file,
-            line=line,
-            column=column,
-        ) from None
+        data = json.loads(text, object_pairs_hook=_pairs_hook)
     except json.JSONDecodeError as err:
         raise CaseError(
             "",
@@ -146,6 +144,19 @@ def read_json_text(text: str | bytes, file: str | None = None) -> Any:
         ) from None
     except RecursionError:
         raise CaseError("", MISSING, "malformed JSON: nested too deeply", file=file) from None
+    non_finite = _non_finite(data)
+    if non_finite:  # not JSON at all (RFC 8259 has no NaN or infinity): name where it is
+        path, value = non_finite[0]
+        places = _bare_constant_places(text)
+        line, column = places[0] if len(places) == len(non_finite) else (None, None)
+        raise CaseError(
+            path or "(top level)",
+            value,
+            "must be a finite number (NaN and infinity are refused)",
+            file=file,
+            line=line,
+            column=column,
+        )
     found = _find_duplicate(data)
     if found:
         path, key = found
