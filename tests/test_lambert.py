@@ -169,3 +169,20 @@ def test_property_multi_rev_lands_on_r2(theta, revs, stretch, branch):
     v1, _ = lambert(r1, r2, tof, MU, revolutions=revs, branch=branch)
     r_end, _ = _land(r1, v1, tof)
     assert np.linalg.norm(r_end - r2) < 1 * M
+
+
+@pytest.mark.parametrize("revs, branch", [(0, "low"), (1, "low"), (1, "high"), (3, "high")])
+def test_lands_on_r2_with_the_kernel_two_body_propagator(revs, branch):
+    # The acceptance check: v1 carried by the kernel's two-body propagator lands on r2
+    # within 1 m.
+    from orbitledger.kernel.twobody import propagate_two_body
+
+    rng = np.random.default_rng(11 + revs)
+    r1 = rng.normal(size=(20, 3)) * 7000.0 + [7000.0, 0, 0]
+    r2 = rng.normal(size=(20, 3)) * 9000.0
+    tmin = solve_lambert(r1, r2, 1.0, MU, revolutions=revs).tof_min_s if revs else 0.0
+    tof = np.maximum(rng.uniform(2000.0, 40000.0, 20), 1.1 * np.asarray(tmin))
+    v1, _ = lambert(r1, r2, tof, MU, revolutions=revs, branch=branch)
+    for k in range(20):
+        r_end, _ = propagate_two_body(r1[k], v1[k], np.array([tof[k]]), mu_km3_s2=MU)
+        assert np.linalg.norm(np.reshape(r_end, 3) - r2[k]) < 1 * M
