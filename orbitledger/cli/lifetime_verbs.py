@@ -139,6 +139,14 @@ def _format_years(data: dict[str, Any]) -> str:
     return f"{years:.2f} years ({days:.1f} days), re-entry about {data['reentry_epoch_utc']}"
 
 
+def _label(name: str) -> str:
+    """``ballistic_coefficient_kg_m2`` -> ``ballistic coefficient (kg/m^2)``."""
+    for suffix, unit in (("_kg_m2", "kg/m^2"), ("_km", "km")):
+        if name.endswith(suffix):
+            return f"{name[: -len(suffix)].replace('_', ' ')} ({unit})"
+    return name.replace("_", " ")
+
+
 def lifetime_table(data: dict[str, Any]) -> str:
     """The lifetime as aligned text lines for a terminal."""
     rows = [
@@ -146,7 +154,8 @@ def lifetime_table(data: dict[str, Any]) -> str:
         ("epoch (UTC)", data["epoch_utc"]),
         (
             "perigee / apogee height",
-            f"{data['perigee_alt_km']:.1f} / {data['apogee_alt_km']:.1f} km",
+            f"{data['perigee_alt_km']:.1f} / {data['apogee_alt_km']:.1f} km above the "
+            "reference radius",
         ),
         ("orbital lifetime", _format_years(data)),
     ]
@@ -155,7 +164,7 @@ def lifetime_table(data: dict[str, Any]) -> str:
         rows.append(
             ("disposal limit", f"{data['lifetime_limit_years']:g} years: {verdict} (preliminary)")
         )
-    rows.extend((name.replace("_", " "), text) for name, text in data["assumptions"].items())
+    rows.extend((_label(name), text) for name, text in data["assumptions"].items())
     width = max(len(name) for name, _ in rows)
     lines = [f"{name:<{width}}  {text}" for name, text in rows]
     lines.append("")
