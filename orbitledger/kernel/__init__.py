@@ -80,3 +80,4 @@ from .anomalies import (
 )
 from .burns import BurnSpec, apply_burn_plan, apply_impulse, rtn_basis, time_to_next_s
 from .porkchop import planetary_porkchop, rendezvous_porkchop, transfer_grid
+from .twobody import propagate_two_body

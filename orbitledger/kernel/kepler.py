@@ -96,22 +96,28 @@ def solve_kepler(mean_anomaly_rad: ArrayLike, e: ArrayLike) -> np.ndarray | floa
 
 
 def solve_kepler_elliptic_sincos(
-    mean_anomaly_rad: ArrayLike, e: float
+    mean_anomaly_rad: ArrayLike, e: ArrayLike
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Eccentric anomaly with its sine and cosine, for one e in [0, 1) and many M.
+    """Eccentric anomaly with its sine and cosine, for elliptic orbits only.
 
-    Given: mean_anomaly_rad (rad, any shape); e, a single eccentricity in [0, 1).
-    Returned: (E, sin E, cos E), arrays of M's shape. sin E and cos E come from the starter's
-    sine rotated by the (small, < 4e-4 rad) correction with its Taylor series, so the
+    Given: mean_anomaly_rad (rad) and e in [0, 1), broadcast together.
+    Returned: (E, sin E, cos E), arrays of the broadcast shape. sin E and cos E come from the
+    starter's sine rotated by the (small, < 4e-4 rad) correction with its Taylor series, so the
     propagator needs no further trigonometric call. Method: Markley (1995), as solve_kepler.
     """
     ecc = np.asarray(e, dtype=float)
     _check_eccentricity(ecc)
-    if ecc.size != 1 or float(ecc.reshape(())) >= 1.0:
-        raise InputError("e", e, "must be one eccentricity in [0, 1) for the elliptic solver")
+    if ecc.size and ecc.max() >= 1.0:
+        raise InputError("e", float(ecc.max()), "the elliptic solver needs 0 <= e < 1")
     M = np.asarray(mean_anomaly_rad, dtype=float)
-    E, s, c = _elliptic(np.ascontiguousarray(M).ravel(), float(ecc.reshape(())), sincos=True)
-    return E.reshape(M.shape), s.reshape(M.shape), c.reshape(M.shape)
+    shape = np.broadcast_shapes(M.shape, ecc.shape)
+    M_flat = np.ascontiguousarray(np.broadcast_to(M, shape)).ravel()
+    if ecc.size == 1:
+        e_arg = float(ecc.reshape(()))
+    else:
+        e_arg = np.ascontiguousarray(np.broadcast_to(ecc, shape)).ravel()
+    E, s, c = _elliptic(M_flat, e_arg, sincos=True)
+    return E.reshape(shape), s.reshape(shape), c.reshape(shape)
 
 
 def hyperbolic_kepler_residual(H: ArrayLike, e: ArrayLike, mean_anomaly_rad: ArrayLike):
