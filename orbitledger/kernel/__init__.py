@@ -81,3 +81,7 @@ from .anomalies import (
 from .burns import BurnSpec, apply_burn_plan, apply_impulse, rtn_basis, time_to_next_s
 from .porkchop import planetary_porkchop, rendezvous_porkchop, transfer_grid
 from .twobody import propagate_two_body
+from .atmosphere import SOLAR_ACTIVITY_LEVELS, SolarActivityLevel, density_kg_m3
+from .forces import ForceModel, acceleration_km_s2, ballistic_coefficient_kg_m2
+from .cowell import CowellResult, propagate_cowell
+from .lifetime import LIFETIME_CAUTION, LifetimeResult, lifetime_years
