@@ -183,6 +183,22 @@ def execute_study(
     return run, manifest
 
 
+_BOKEHJS_LOAD = "application/vnd.bokehjs_load.v0+json"
+
+
+def archived_notebook(nb: Any) -> Any:
+    """The executed notebook as the ledger keeps it: BokehJS loader outputs left out.
+
+    Each loader output carries a full BokehJS (megabytes); the record's figures are in their
+    own outputs (``FIGURE_MIME``) and the HTML record inlines one BokehJS of its own.
+    """
+    nb = copy.deepcopy(nb)
+    for cell in nb.cells:
+        if cell.cell_type == "code":
+            cell.outputs = [o for o in cell.get("outputs", []) if _BOKEHJS_LOAD not in o.get("data", {})]
+    return nb
+
+
 def _cell_failure(nb: Any, index: int, err: Any) -> str:
     where = f"cell {index + 1} ({_first_line(nb.cells[index].source)})" if index >= 0 else "a cell"
     tb = [_ANSI.sub("", line) for line in getattr(err, "traceback", "").splitlines()]
@@ -360,7 +376,7 @@ def build(
         record["revision"] = reservation.revision
         record["history"] = _history(ledger, record, reservation.revision)
         html = render_html(executed, record)
-        notebook_bytes = nbformat.writes(executed).encode("utf-8")
+        notebook_bytes = nbformat.writes(archived_notebook(executed)).encode("utf-8")
         record_bytes = rec.canonical_dumps(record).encode("utf-8")
         outcome.files["html"] = ledger.write_artifact(
             reservation, "record.html", html.encode("utf-8")

@@ -192,7 +192,28 @@ class OrbitRecordExporter(HTMLExporter):
             nb, record = self._run_study(nb, resources)
         prepared = prepare_outputs(nb)
         resources["orbitledger"] = record_context(record, prepared)
-        return super().from_notebook_node(prepared, resources, **kw)
+        return self._render(prepared, resources, **kw)
+
+    def _render(self, nb: Any, resources: dict[str, Any], **kw: Any) -> Any:
+        """HTMLExporter's rendering without its BeautifulSoup pass over the page.
+
+        That pass only adds alt texts and tab stops to JupyterLab's cell classes (our template
+        writes its own alt texts and has none of those classes), yet it re-parses and
+        re-serialises the whole document, 1 MB of inlined BokehJS included.
+        """
+        from nbconvert.exporters.templateexporter import TemplateExporter
+        from nbconvert.filters.highlight import Highlight2HTML
+        from nbconvert.filters.widgetsdatatypefilter import WidgetsDataTypeFilter
+
+        langinfo = nb.metadata.get("language_info", {})
+        lexer = langinfo.get("pygments_lexer", langinfo.get("name", None))
+        self.register_filter("highlight_code", Highlight2HTML(pygments_lexer=lexer, parent=self))
+        resources = self._init_resources(resources)
+        self.register_filter(
+            "filter_data_type",
+            WidgetsDataTypeFilter(notebook_metadata=self._nb_metadata, parent=self, resources=resources),
+        )
+        return TemplateExporter.from_notebook_node(self, nb, resources, **kw)
 
     def _run_study(self, nb: Any, resources: dict[str, Any]) -> tuple[Any, dict[str, Any]]:
         """No record given (nbconvert, JupyterLab): run the study headless, no ledger."""
