@@ -19,7 +19,9 @@ from ..kernel.errors import InputError
 # The verbs modules, in the order their verbs appear in ``--help``.
 VERB_MODULES = [
     "orbitledger.cli.case_verbs",
+    "orbitledger.cli.design_verbs",
     "orbitledger.cli.lifetime_verbs",
+    "orbitledger.cli.report_verbs",
 ]
 
 
