@@ -85,3 +85,4 @@ from .atmosphere import SOLAR_ACTIVITY_LEVELS, SolarActivityLevel, density_kg_m3
 from .forces import ForceModel, acceleration_km_s2, ballistic_coefficient_kg_m2
 from .cowell import CowellResult, propagate_cowell
 from .lifetime import LIFETIME_CAUTION, LifetimeResult, lifetime_years
+from .summary import orbit_cautions, orbit_summary
