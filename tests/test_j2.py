@@ -93,3 +93,52 @@ def test_no_sun_synchronous_orbit_far_out_is_refused() -> None:
         sun_synchronous_inclination_deg(15_000.0)
     with pytest.raises(InputError, match="elements.e"):
         j2_secular_rates(_circular(7000.0, 98.0, e=1.2))
+
+
+def test_j2_mean_propagation_without_j2_is_the_two_body_circle() -> None:
+    # With J2 = 0 the rates vanish and the model must reduce to Kepler motion: compare with
+    # the circle written out in closed form (tests/_circular_orbit.py), to 1 mm over a day.
+    from orbitledger.kernel.j2 import propagate_j2_mean
+    from tests._circular_orbit import circular, plane_basis
+
+    no_j2 = Body(name="Earth", mu_km3_s2=EARTH.mu_km3_s2, radius_km=EARTH.radius_km, j2=0.0)
+    el = Elements(a_km=6918.137, e=0.0, i_deg=97.5, raan_deg=30.0, argp_deg=0.0, nu_deg=40.0)
+    t = np.linspace(0.0, 86400.0, 2001)
+    r, v = propagate_j2_mean(el, t, body=no_j2)
+    p, q = plane_basis(97.5, 30.0)
+    ref_r, ref_v = circular(6918.137, p, q, u0_deg=40.0).gcrf(t)
+    assert np.max(np.abs(r - ref_r)) < 1e-6
+    assert np.max(np.abs(v - ref_v)) < 1e-9
+
+
+def test_j2_mean_velocity_is_the_derivative_of_position() -> None:
+    from orbitledger.kernel.j2 import propagate_j2_mean
+
+    el = Elements(a_km=7200.0, e=0.05, i_deg=63.0, raan_deg=10.0, argp_deg=45.0, nu_deg=0.0)
+    t = 5.0 * 86400.0 + np.array([-0.01, 0.0, 0.01])  # central difference (common practice)
+    r, v = propagate_j2_mean(el, t)
+    assert np.max(np.abs((r[2] - r[0]) / 0.02 - v[1])) < 1e-6  # 1 mm/s
+
+
+def test_sun_synchronous_orbit_keeps_its_local_time_over_30_days() -> None:
+    # Sun-synchronous: the local mean time of the node stays fixed (definition; common
+    # practice). Over 30 days with the J2 mean model it moves < 0.5 min; a 97.0 deg orbit at
+    # the same height drifts by minutes (the node rate differs by 0.03 deg/day per 0.5 deg).
+    import warnings
+
+    from orbitledger.kernel.eclipses import node_local_times_h
+    from orbitledger.kernel.propagation import trajectory
+
+    a_km = EARTH.radius_km + 540.0
+    i_sso = sun_synchronous_inclination_deg(a_km, 0.0)
+    days = np.array([0.0, 30.0 * 86400.0])
+    drift = {}
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        for i_deg in (i_sso, 97.0):
+            el = Elements(a_km=a_km, e=0.0, i_deg=i_deg, raan_deg=340.0, argp_deg=0.0, nu_deg=0.0)
+            traj = trajectory("j2-mean", el, "2027-03-21T10:30:00Z", duration_s=days[1])
+            lt = node_local_times_h(traj, days)["ltan_h"]
+            drift[i_deg] = (lt[1] - lt[0]) * 60.0
+    assert abs(drift[i_sso]) < 0.5
+    assert abs(drift[97.0]) > 3.0
