@@ -1,0 +1,93 @@
+"""From a validated case to the kernel's arguments: the one place that translates.
+
+Every face (the command line, the editor, the records, the trade studies) asks here for the
+trajectory, the stations, the force model or the ballistic coefficient of a case, so that a
+case means the same computation everywhere.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from typing import Any
+
+from ..kernel.errors import InputError
+from ..kernel.forces import ForceModel as KernelForceModel
+from ..kernel.passes import Station as KernelStation
+from ..kernel.propagation import EarthOrientation as KernelEarthOrientation
+from ..kernel.propagation import Trajectory, trajectory
+
+__all__ = [
+    "ballistic_coefficient_kg_m2",
+    "case_earth_orientation",
+    "case_force_model",
+    "case_stations",
+    "case_trajectory",
+]
+
+
+def case_earth_orientation(case: Any) -> KernelEarthOrientation:
+    eop = case.earth_orientation
+    return KernelEarthOrientation(eop.dut1_s, eop.xp_arcsec, eop.yp_arcsec)
+
+
+def case_stations(case: Any) -> tuple[KernelStation, ...]:
+    return tuple(
+        KernelStation(s.name, s.lat_deg, s.lon_deg, s.height_km, s.elevation_mask_deg)
+        for s in case.stations
+    )
+
+
+def ballistic_coefficient_kg_m2(case: Any, *, field: str = "spacecraft") -> float:
+    """m / (Cd A) in kg/m^2 from the spacecraft section; refuses a case without one."""
+    sc = case.spacecraft
+    if sc is None:
+        raise InputError(
+            field, None, "this analysis needs the spacecraft's mass, drag area and drag coefficient"
+        )
+    return sc.mass_kg / (sc.drag_coefficient * sc.drag_area_m2)
+
+
+def case_force_model(case: Any) -> KernelForceModel:
+    """The kernel force model of a numerical case (drag only when the case asks for it)."""
+    fm = case.force_model
+    return KernelForceModel(
+        zonal_degree=fm.zonal_degree,
+        ballistic_coefficient_kg_m2=(
+            ballistic_coefficient_kg_m2(case, field="force_model.drag") if fm.drag else None
+        ),
+        solar_activity=fm.solar_activity,
+        third_bodies=tuple(fm.third_body),
+        body=case.body_constants(),
+    )
+
+
+def case_trajectory(
+    case: Any,
+    *,
+    duration_s: float | None = None,
+    progress: Callable[[float], None] | None = None,
+) -> Trajectory:
+    """The case's trajectory over its analysis window, by its ``force_model.propagator``.
+
+    ``duration_s`` overrides the window length (the start stays the window's start).
+    """
+    fm = case.force_model
+    if fm.propagator == "sgp4":
+        raise InputError(
+            "force_model.propagator",
+            "sgp4",
+            "SGP4 needs the case's TLE source (orbitledger import)",
+        )
+    numerical = fm.propagator == "numerical"
+    return trajectory(
+        fm.propagator,
+        case.elements(),
+        case.epoch_utc,
+        start_utc=case.window.start_utc,
+        duration_s=case.window.duration_s if duration_s is None else duration_s,
+        body=case.body_constants(),
+        eop=case_earth_orientation(case),
+        force_model=case_force_model(case) if numerical else None,
+        cowell_options={"rtol": fm.rtol, "atol_km": fm.atol_km} if numerical else None,
+        progress=progress,
+    )
