@@ -22,6 +22,7 @@ VERB_MODULES = [
     "orbitledger.cli.design_verbs",
     "orbitledger.cli.lifetime_verbs",
     "orbitledger.cli.report_verbs",
+    "orbitledger.cli.environment_verbs",
 ]
 
 

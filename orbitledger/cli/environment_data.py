@@ -1,0 +1,257 @@
+"""A case's environment results as plain data: passes, eclipses, ground track, ephemeris.
+
+Maps a validated ``Case`` onto the kernel (trajectory by the case's propagator over its
+analysis window, stations, Earth orientation) and returns JSON-ready dicts. Used by the CLI
+verbs; the results panel and the records may call the same functions.
+"""
+
+from __future__ import annotations
+
+import warnings
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from dataclasses import asdict
+from typing import Any
+
+import numpy as np
+
+__all__ = [
+    "CAUTION",
+    "case_trajectory",
+    "eclipses_data",
+    "ephemeris_data",
+    "groundtrack_data",
+    "passes_data",
+    "recorded_warnings",
+]
+
+CAUTION = (
+    "Preliminary analysis with the stated models (propagator, Earth orientation, shadow and "
+    "station geometry as listed). For collision avoidance, re-entry, disposal compliance or "
+    "launch decisions, defer to authoritative ephemerides and data, the licensing authority "
+    "and licensed practice."
+)
+
+
+@contextmanager
+def recorded_warnings() -> Iterator[list[str]]:
+    """Collect the kernel's warnings (each once) as text lines instead of printing them."""
+    lines: list[str] = []
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        yield lines
+    for w in caught:
+        text = str(w.message)
+        if text not in lines:
+            lines.append(text)
+
+
+def _kernel_force_model(case: Any, body: Any):
+    from ..kernel.forces import ForceModel, ballistic_coefficient_kg_m2
+
+    fm = case.force_model
+    b = None
+    if fm.drag:
+        craft = case.spacecraft
+        b = float(
+            ballistic_coefficient_kg_m2(craft.mass_kg, craft.drag_area_m2, craft.drag_coefficient)
+        )
+    return ForceModel(
+        zonal_degree=fm.zonal_degree,
+        ballistic_coefficient_kg_m2=b,
+        solar_activity=fm.solar_activity,
+        third_bodies=tuple(fm.third_body),
+        body=body,
+    )
+
+
+def case_trajectory(case: Any, progress: Callable[[float], None] | None = None):
+    """The kernel ``Trajectory`` of a case over its analysis window, by its propagator."""
+    from ..kernel.errors import InputError
+    from ..kernel.propagation import EarthOrientation, trajectory
+
+    body = case.body_constants()
+    if body.name.lower() != "earth":
+        raise InputError(
+            "body.name", body.name, "station, eclipse and ground-track analyses are for the Earth"
+        )
+    propagator = case.force_model.propagator
+    if propagator == "sgp4":
+        raise InputError(
+            "force_model.propagator",
+            propagator,
+            "not yet available for these analyses: use two-body, j2-mean or numerical",
+        )
+    eo = case.earth_orientation
+    eop = EarthOrientation(eo.dut1_s, eo.xp_arcsec, eo.yp_arcsec)
+    options = None
+    model = None
+    if propagator == "numerical":
+        model = _kernel_force_model(case, body)
+        options = {"rtol": case.force_model.rtol, "atol_km": case.force_model.atol_km}
+    return trajectory(
+        propagator,
+        case.elements(),
+        case.epoch_utc,
+        start_utc=case.window_start_utc,
+        duration_s=case.window.duration_s,
+        body=body,
+        eop=eop,
+        force_model=model,
+        cowell_options=options,
+        progress=progress,
+    )
+
+
+def _header(case: Any, traj: Any, kind: str) -> dict[str, Any]:
+    from ..kernel.timescales import utc_iso
+
+    return {
+        "analysis": kind,
+        "title": case.meta.title,
+        "record_id": case.meta.record_id,
+        "case_fingerprint": case.fingerprint,
+        "epoch_utc": case.epoch_utc,
+        "window": {
+            "start_utc": str(utc_iso(traj.start.utc1, traj.start.utc2, 3)),
+            "duration_s": case.window.duration_s,
+            "step_s": case.window.step_s,
+        },
+        "propagator": traj.propagator,
+        "earth_orientation": asdict(traj.eop),
+        "model_notes": list(traj.notes),
+        "utc_tai_extrapolated": bool(traj.start.utc_tai_extrapolated),
+        "caution": CAUTION,
+    }
+
+
+def passes_data(case: Any, progress: Callable[[float], None] | None = None) -> dict[str, Any]:
+    """Every pass over the case's stations in its window, with daily statistics."""
+    from ..kernel.errors import InputError
+    from ..kernel.passes import Station, station_passes
+
+    if not case.stations:
+        raise InputError("stations", [], "the case has no stations: add one to compute passes")
+    stations = [
+        Station(s.name, s.lat_deg, s.lon_deg, s.height_km, s.elevation_mask_deg)
+        for s in case.stations
+    ]
+    with recorded_warnings() as notes:
+        traj = case_trajectory(case, progress)
+        found = station_passes(traj, stations, case.window.duration_s, step_s=case.window.step_s)
+    data = _header(case, traj, "passes")
+    data.update(
+        stations=[asdict(s) for s in stations],
+        passes=[asdict(p) | {"duration_s": p.duration_s} for p in found.passes],
+        daily=[asdict(d) for d in found.daily],
+        longest_gap_s=dict(found.longest_gap_s),
+        search_step_s=found.search_step_s,
+        tolerance_s=found.tolerance_s,
+        short_passes_found=found.short_passes_found,
+        utc_tai_extrapolated=found.utc_tai_extrapolated,
+        conventions=list(found.notes),
+        warnings=notes + list(case.warnings()),
+    )
+    return data
+
+
+def eclipses_data(
+    case: Any, model: str = "conical", progress: Callable[[float], None] | None = None
+) -> dict[str, Any]:
+    """Eclipses in the case's window, per-orbit shadow budget, beta angle and node local times."""
+    from ..kernel.eclipses import beta_angle_deg, find_eclipses, node_local_times_h
+    from ..kernel.sun import sun_position_from_tt_km
+
+    with recorded_warnings() as notes:
+        traj = case_trajectory(case, progress)
+        duration = min(case.window.duration_s, traj.end_s)
+        found = find_eclipses(traj, duration, model=model)
+        t = np.linspace(0.0, duration, max(2, min(2001, int(duration // 600) + 2)))
+        r, v = traj.gcrf(t)
+        ts = traj.times(t)
+        beta = beta_angle_deg(r, v, sun_position_from_tt_km(ts.tt1, ts.tt2))
+        node = node_local_times_h(traj, t[[0, -1]])
+    orbits = [asdict(o) for o in found.per_orbit]
+    data = _header(case, traj, "eclipses")
+    data.update(
+        shadow_model=found.model,
+        eclipses=[
+            asdict(e) | {"duration_s": e.duration_s, "umbra_duration_s": e.umbra_duration_s}
+            for e in found.eclipses
+        ],
+        per_orbit=orbits,
+        summary={
+            "eclipses": len(found.eclipses),
+            "mean_fraction": float(np.mean([o["fraction"] for o in orbits])) if orbits else 0.0,
+            "longest_eclipse_s": max((e.duration_s for e in found.eclipses), default=0.0),
+            "beta_min_deg": float(np.min(beta)),
+            "beta_max_deg": float(np.max(beta)),
+            "ltan_h_start": float(node["ltan_h"][0]),
+            "ltan_h_end": float(node["ltan_h"][-1]),
+            "ltdn_h_start": float(node["ltdn_h"][0]),
+            "ltan_true_h_start": float(node["ltan_true_h"][0]),
+        },
+        beta_series={"offset_s": t.tolist(), "beta_deg": beta.tolist()},
+        search_step_s=found.search_step_s,
+        tolerance_s=found.tolerance_s,
+        conventions=list(found.notes),
+        warnings=notes + list(case.warnings()),
+    )
+    return data
+
+
+def _window_offsets(case: Any, traj: Any) -> np.ndarray:
+    duration = min(case.window.duration_s, traj.end_s)
+    t = np.arange(0.0, duration, case.window.step_s)
+    return np.append(t, duration) if t[-1] < duration else t
+
+
+def groundtrack_data(case: Any, progress: Callable[[float], None] | None = None) -> dict[str, Any]:
+    """Sub-satellite latitude/longitude/height at the window's steps, with eclipse flags."""
+    from ..kernel.eclipses import PENUMBRA, UMBRA, shadow_state
+    from ..kernel.groundtrack import ground_track
+    from ..kernel.sun import sun_position_from_tt_km
+    from ..kernel.timescales import utc_iso
+
+    with recorded_warnings() as notes:
+        traj = case_trajectory(case, progress)
+        t = _window_offsets(case, traj)
+        r, _ = traj.gcrf(t)
+        ts = traj.times(t)
+        state = shadow_state(r, sun_position_from_tt_km(ts.tt1, ts.tt2))
+        gt = ground_track(traj, t, in_eclipse=np.isin(state, (UMBRA, PENUMBRA)))
+    data = _header(case, traj, "groundtrack")
+    data.update(
+        columns={
+            "time_utc": list(utc_iso(ts.utc1, ts.utc2, 3)),
+            "offset_s": t.tolist(),
+            "lat_deg": gt.lat_deg.tolist(),
+            "lon_deg": gt.lon_deg.tolist(),
+            "height_km": gt.height_km.tolist(),
+            "in_eclipse": gt.in_eclipse.tolist(),
+        },
+        antimeridian_segments=[[s.start, s.stop] for s in gt.segments()],
+        warnings=notes + list(case.warnings()),
+    )
+    return data
+
+
+def ephemeris_data(case: Any, progress: Callable[[float], None] | None = None) -> dict[str, Any]:
+    """GCRF and ITRF position and velocity at the window's steps."""
+    from ..kernel.timescales import utc_iso
+
+    with recorded_warnings() as notes:
+        traj = case_trajectory(case, progress)
+        t = _window_offsets(case, traj)
+        r, v = traj.gcrf(t)
+        r_itrf, v_itrf = traj.itrf(t, velocity=True)
+        ts = traj.times(t)
+    cols: dict[str, Any] = {"time_utc": list(utc_iso(ts.utc1, ts.utc2, 3)), "offset_s": t.tolist()}
+    for frame, pos, vel in (("gcrf", r, v), ("itrf", r_itrf, v_itrf)):
+        for k, axis in enumerate("xyz"):
+            cols[f"{axis}_{frame}_km"] = pos[:, k].tolist()
+        for k, axis in enumerate("xyz"):
+            cols[f"v{axis}_{frame}_km_s"] = vel[:, k].tolist()
+    data = _header(case, traj, "ephemeris")
+    data.update(columns=cols, warnings=notes + list(case.warnings()))
+    return data
