@@ -20,7 +20,7 @@ from .elements import Elements, elements_to_state, state_to_elements
 from .errors import InputError
 
 # Each concept's module adds its public names below this line.
-from .j2 import j2_secular_rates, sun_synchronous_inclination_deg
+from .j2 import j2_secular_rates, propagate_j2_mean, sun_synchronous_inclination_deg
 from .timescales import TimeScales, parse_utc, time_scales, utc_iso
 from .frames import (
     TopocentricView,
@@ -33,6 +33,18 @@ from .frames import (
     topocentric_view,
 )
 from .sun import sun_position_gcrf_km
+from .propagation import EarthOrientation, Trajectory, trajectory
+from .groundtrack import GroundTrack, ground_track
+from .passes import Pass, PassSearch, Station, station_passes
+from .eclipses import (
+    Eclipse,
+    EclipseSearch,
+    beta_angle_deg,
+    find_eclipses,
+    node_local_times_h,
+    shadow_state,
+    sunlit_fraction,
+)
 from .transfers import (
     bielliptic,
     combined_plane_change,
