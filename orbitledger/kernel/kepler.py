@@ -146,29 +146,54 @@ def _check_eccentricity(ecc: np.ndarray) -> None:
         )
 
 
+CHUNK_SIZE = _CHUNK
+
+
+class KeplerWorkspace:
+    """Scratch buffers for the elliptic solver on chunks of at most ``size`` elements.
+
+    A caller that runs its own cache-sized chunk loop (the propagator) keeps one workspace
+    and calls ``elliptic_sincos_into`` per chunk, so no buffer is allocated inside the loop.
+    """
+
+    def __init__(self, size: int = _CHUNK) -> None:
+        self.size = int(size)
+        self.buffers = [np.empty(self.size) for _ in range(_N_BUFFERS)]
+        self.mask = np.empty(self.size, dtype=bool)
+
+    def views(self, k: int):
+        if k == self.size:
+            return self.buffers, self.mask
+        return [b[:k] for b in self.buffers], self.mask[:k]
+
+
+def elliptic_sincos_into(M, e, E, sin_E, cos_E, workspace: KeplerWorkspace) -> None:
+    """Markley's solver on one chunk (len(M) <= workspace.size), results written in place.
+
+    M, E, sin_E, cos_E: flat float arrays of one length (sin_E, cos_E may be None); e: a float
+    in [0, 1) or an array of that length (not validated here: solve_kepler validates).
+    """
+    bufs, mask = workspace.views(M.shape[0])
+    _markley_chunk(M, e, E, bufs, mask, sin_E, cos_E)
+
+
 def _elliptic(M: np.ndarray, e, sincos: bool = False):
     """Markley (1995) over a flat contiguous M; e a float or an array of M's length."""
     n = M.size
     E = np.empty(n)
     s_out = np.empty(n) if sincos else None
     c_out = np.empty(n) if sincos else None
-    size = min(n, _CHUNK)
-    buffers = [np.empty(size) for _ in range(_N_BUFFERS)]
-    mask = np.empty(size, dtype=bool)
+    workspace = KeplerWorkspace(min(n, _CHUNK))
     scalar_e = np.ndim(e) == 0
     for start in range(0, n, _CHUNK):
         stop = min(start + _CHUNK, n)
-        k = stop - start
-        bufs = [b[:k] for b in buffers] if k != size else buffers
-        e_chunk = e if scalar_e else e[start:stop]
-        _markley_chunk(
+        elliptic_sincos_into(
             M[start:stop],
-            e_chunk,
+            e if scalar_e else e[start:stop],
             E[start:stop],
-            bufs,
-            mask[:k],
             None if s_out is None else s_out[start:stop],
             None if c_out is None else c_out[start:stop],
+            workspace,
         )
     return E, s_out, c_out
 

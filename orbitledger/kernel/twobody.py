@@ -35,7 +35,7 @@ from numpy.typing import ArrayLike
 from .constants import EARTH
 from .elements import _check_mu, _check_state
 from .errors import InputError
-from .kepler import solve_kepler_elliptic_sincos
+from .kepler import CHUNK_SIZE, KeplerWorkspace, elliptic_sincos_into
 
 __all__ = ["propagate_two_body", "stumpff_c2_c3", "FAST_PATH_MAX_E"]
 
@@ -120,43 +120,66 @@ def _elliptic_fg(r0v, v0v, r0, sigma0, alpha, es0, ec0, dt, mu, r_out, v_out) ->
     """Kepler's equation and f, g in the eccentric-anomaly difference (module docstring).
 
     Per-state values are floats or flat arrays matching dt; r0v, v0v are (3,) or (K, 3);
-    results are written to r_out, v_out of shape (3, K).
+    results are written to r_out, v_out of shape (3, K). Runs in cache-sized chunks with
+    preallocated buffers (the reason is in kepler.py's module docstring).
     """
     e = np.hypot(es0, ec0)
     E0 = np.arctan2(es0, ec0)
     n = np.sqrt(mu * alpha) * alpha
-    M = n * dt
-    M += E0 - es0
-    _, sin_dE, cos_dE = solve_kepler_elliptic_sincos(M, e)
+    M0 = E0 - es0
     sE0, cE0 = np.sin(E0), np.cos(E0)
-    t1 = cos_dE * sE0
-    t2 = sin_dE * sE0
-    sin_dE *= cE0  # sin dE = sin E cos E0 - cos E sin E0
-    sin_dE -= t1
-    cos_dE *= cE0  # cos dE = cos E cos E0 + sin E sin E0
-    cos_dE += t2
-    omc = np.subtract(1.0, cos_dE, out=t2)  # 1 - cos dE
     a = 1.0 / alpha
     sqrt_a = np.sqrt(a)
     sqrt_mu = math.sqrt(mu)
-    r = cos_dE  # r = a + (r0 - a) cos dE + sigma0 sqrt(a) sin dE
-    r *= r0 - a
-    r += a
-    np.multiply(sin_dE, sigma0 * sqrt_a, out=t1)
-    r += t1
-    f = np.multiply(omc, -a / r0)
-    f += 1.0
-    g = np.multiply(omc, a * sigma0 / sqrt_mu)
-    np.multiply(sin_dE, r0 * sqrt_a / sqrt_mu, out=t1)
-    g += t1
-    fdot = sin_dE
-    fdot *= -sqrt_mu * sqrt_a / r0
-    fdot /= r
-    gdot = omc
-    gdot *= a
-    gdot /= r
-    np.subtract(1.0, gdot, out=gdot)
-    _combine(f, g, fdot, gdot, r0v, v0v, r_out, v_out, t1)
+    r0_minus_a = r0 - a
+    k_r = sigma0 * sqrt_a
+    k_f = -a / r0
+    k_g1 = a * sigma0 / sqrt_mu
+    k_g2 = r0 * sqrt_a / sqrt_mu
+    k_fd = -sqrt_mu * sqrt_a / r0
+    size = dt.shape[0]
+    chunk = min(size, CHUNK_SIZE)
+    ws = KeplerWorkspace(chunk)
+    bufs = [np.empty(chunk) for _ in range(8)]
+    for start in range(0, size, chunk):
+        stop = min(start + chunk, size)
+        sl = slice(start, stop)
+        M, E, sin_dE, cos_dE, t1, t2, f, g = (b[: stop - start] for b in bufs)
+
+        def part(x, sl=sl):
+            return x if np.ndim(x) == 0 else x[sl]
+
+        np.multiply(dt[sl], part(n), out=M)
+        M += part(M0)
+        elliptic_sincos_into(M, part(e), E, sin_dE, cos_dE, ws)
+        np.multiply(cos_dE, part(sE0), out=t1)
+        np.multiply(sin_dE, part(sE0), out=t2)
+        sin_dE *= part(cE0)  # sin dE = sin E cos E0 - cos E sin E0
+        sin_dE -= t1
+        cos_dE *= part(cE0)  # cos dE = cos E cos E0 + sin E sin E0
+        cos_dE += t2
+        omc = t2
+        np.subtract(1.0, cos_dE, out=omc)  # 1 - cos dE
+        r = cos_dE  # r = a + (r0 - a) cos dE + sigma0 sqrt(a) sin dE
+        r *= part(r0_minus_a)
+        r += part(a)
+        np.multiply(sin_dE, part(k_r), out=t1)
+        r += t1
+        np.multiply(omc, part(k_f), out=f)
+        f += 1.0
+        np.multiply(omc, part(k_g1), out=g)
+        np.multiply(sin_dE, part(k_g2), out=t1)
+        g += t1
+        fdot = sin_dE
+        fdot *= part(k_fd)
+        fdot /= r
+        gdot = omc
+        gdot *= part(a)
+        gdot /= r
+        np.subtract(1.0, gdot, out=gdot)
+        rv = r0v if r0v.ndim == 1 else r0v[sl]
+        vv = v0v if v0v.ndim == 1 else v0v[sl]
+        _combine(f, g, fdot, gdot, rv, vv, r_out[:, sl], v_out[:, sl], t1)
 
 
 def _combine(f, g, fdot, gdot, r0v, v0v, r_out, v_out, tmp) -> None:
