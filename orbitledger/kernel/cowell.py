@@ -160,8 +160,12 @@ def propagate_cowell(
             r0.tolist(),
             f"height {h0:.1f} km is at or below the re-entry altitude {reentry_altitude_km:g} km",
         )
-    t = _checked_times(t_s)
-    t_final = float(t[-1])
+    t_requested = _checked_times(t_s)
+    t_final = float(t_requested[-1])
+    # scipy wants strictly ordered output times: integrate to the distinct ones, expand after.
+    sign = 1.0 if t_final >= 0.0 else -1.0
+    t_distinct, which = np.unique(sign * t_requested, return_inverse=True)
+    t = sign * t_distinct
     jd1, jd2 = float(epoch_jd_tt[0]), float(epoch_jd_tt[1])
     needs_epoch = bool(model.third_bodies)
 
@@ -231,8 +235,10 @@ def propagate_cowell(
         y = sol_y[:, -1]
         if progress is not None:
             progress(abs(stop / t_final))
-    times = np.concatenate(t_out) if t_out else np.empty(0)
-    states = np.concatenate(y_out, axis=1) if y_out else np.empty((6, 0))
+    states_distinct = np.concatenate(y_out, axis=1) if y_out else np.empty((6, 0))
+    reached = which < states_distinct.shape[1]
+    times = t_requested[reached]
+    states = states_distinct[:, which[reached]]
     return CowellResult(
         t_s=times,
         r_km=states[:3].T.copy(),

@@ -45,7 +45,9 @@ __all__ = [
 
 THIRD_BODIES = ("sun", "moon")
 _SECONDS_PER_DAY = 86_400.0
-_AU_PER_DAY_TO_KM_S = AU_KM / _SECONDS_PER_DAY
+# omega x r = w (-y, x, 0) for omega = (0, 0, w): r[..., _YXZ] * _CROSS_SIGN * w
+_YXZ = [1, 0, 2]
+_CROSS_SIGN = np.array([-1.0, 1.0, 0.0])
 
 
 def ballistic_coefficient_kg_m2(
@@ -60,7 +62,7 @@ def ballistic_coefficient_kg_m2(
 def two_body_acceleration_km_s2(r_km: ArrayLike, mu_km3_s2: float) -> np.ndarray:
     """Point-mass gravity -mu r / |r|^3, km/s^2 (Newton; Vallado 4th ed., Sec. 1.3)."""
     r = np.asarray(r_km, dtype=float)
-    r2 = np.sum(r * r, axis=-1, keepdims=True)
+    r2 = (r * r).sum(axis=-1, keepdims=True)
     return (-mu_km3_s2 / (r2 * np.sqrt(r2))) * r
 
 
@@ -112,7 +114,7 @@ def ellipsoidal_height_km(r_km: ArrayLike, body: Body = EARTH) -> np.ndarray:
     model. Use the frames module for geodetic coordinates where they matter.
     """
     r = np.asarray(r_km, dtype=float)
-    r2 = np.sum(r * r, axis=-1)
+    r2 = (r * r).sum(axis=-1)
     return np.sqrt(r2) - body.radius_km * (1.0 - body.flattening * r[..., 2] ** 2 / r2)
 
 
@@ -127,23 +129,21 @@ def drag_acceleration_km_s2(
     """Drag acceleration -(1/2) rho |v_rel| v_rel / B, km/s^2, in a co-rotating atmosphere.
 
     v_rel = v - omega x r with omega along z at ``body.rotation_rate_rad_s`` (Montenbruck &
-    Gill, Satellite Orbits (2000), Sec. 3.5.1, Eq. 3.97; equation number from memory). B = m / (Cd A), kg/m^2. The density
-    is ``density(h_km)`` if given, else the exponential model of ``orbitledger.kernel.atmosphere``
-    at ``solar_activity``.
+    Gill, Satellite Orbits (2000), Sec. 3.5.1, Eq. 3.97; equation number from memory).
+    B = m / (Cd A), kg/m^2. The density is ``density(h_km)`` if given, else the exponential
+    model of ``orbitledger.kernel.atmosphere`` at ``solar_activity``.
     """
-    if not np.all(np.greater(ballistic_coefficient_kg_m2, 0.0)):
+    if not np.all(np.asarray(ballistic_coefficient_kg_m2) > 0.0):
         raise InputError(
             "ballistic_coefficient_kg_m2", ballistic_coefficient_kg_m2, "must be positive"
         )
     r = np.asarray(r_km, dtype=float)
     v = np.asarray(v_km_s, dtype=float)
     w = body.rotation_rate_rad_s
-    v_rel = np.array(np.broadcast_to(v, np.broadcast_shapes(v.shape, r.shape)))
-    v_rel[..., 0] += w * r[..., 1]
-    v_rel[..., 1] -= w * r[..., 0]
+    v_rel = v - (w * r[..., _YXZ]) * _CROSS_SIGN  # v - omega x r, omega = (0, 0, w)
     h = ellipsoidal_height_km(r, body)
     rho = density(h) if density is not None else density_kg_m3(h, solar_activity)
-    speed = np.sqrt(np.sum(v_rel * v_rel, axis=-1, keepdims=True))
+    speed = np.sqrt((v_rel * v_rel).sum(axis=-1, keepdims=True))
     # rho [kg/m^3] / B [kg/m^2] -> 1/m; |v| v in km^2/s^2 -> factor 1e3 gives km/s^2.
     scale = -0.5e3 * np.asarray(rho)[..., None] / ballistic_coefficient_kg_m2
     return scale * speed * v_rel

@@ -133,7 +133,7 @@ def _orbit_averaged(
     h_reentry: float,
     max_years: float,
     body: Body,
-) -> tuple[float, bool, np.ndarray, np.ndarray, int]:
+) -> tuple[float, bool, np.ndarray, float, int]:
     radius = _mean_radius_km(i_rad, body)
 
     def density(h: np.ndarray) -> np.ndarray:
@@ -153,7 +153,7 @@ def _orbit_averaged(
         atol=[1e-4, 1e-8],  # 0.1 m in a, 1e-8 in e: lifetimes stable to 1e-5 relative
         events=perigee_down,
     )
-    reentered = sol.status == 1
+    reentered = bool(sol.status == 1)
     t_end = float(sol.t_events[0][0]) if reentered else float(sol.t[-1])
     y = sol.y
     t = sol.t
@@ -197,13 +197,10 @@ def _numerical(
     osc = state_to_elements(result.r_km, result.v_km_s, body.mu_km3_s2)
     a = np.asarray(osc.a_km)
     ecc = np.asarray(osc.e)
-    radius = _mean_radius_km(math.radians(float(elements.i_deg)), body)
+    radius = _mean_radius_km(math.radians(float(np.asarray(elements.i_deg))), body)
     history = np.array([result.t_s / _YEAR_S, a * (1 - ecc) - radius, a * (1 + ecc) - radius])
-    if result.decayed:
-        years = float(result.decay_time_s) / _YEAR_S
-    else:
-        years = float(result.t_end_s) / _YEAR_S
-    return years, bool(result.decayed), history, radius, int(result.nfev)
+    end_s = result.decay_time_s if result.decay_time_s is not None else result.t_end_s
+    return float(end_s) / _YEAR_S, result.decayed, history, radius, int(result.nfev)
 
 
 def lifetime_years(
