@@ -45,6 +45,9 @@ _ELEMENT_LABELS = {
     "nu_deg": "true anomaly",
 }
 
+# Summary quantities that hold at the epoch rather than for the whole orbit.
+_AT_EPOCH = {"radius_km", "speed_km_s", "flight_path_angle_deg"}
+
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     new = subparsers.add_parser(
@@ -184,16 +187,17 @@ def summary_table(data: Mapping[str, Any]) -> str:
     rows.append(("", "", ""))
     for key, value in data["summary"].items():
         label, unit = _split_unit(key)
-        text = _format(value)
+        if key in _AT_EPOCH:
+            label += " at the epoch"
         if key == "period_s" and isinstance(value, float):
-            text += f"  ({value / 60.0:.4f} min)"
-        rows.append((label, text, unit))
-    width = max(len(r[0]) for r in rows)
+            unit += f"  ({value / 60.0:.4f} min)"
+        rows.append((label, _format(value), unit))
+    label_width = max(len(r[0]) for r in rows)
+    value_width = max(len(r[1]) for r in rows)
     lines = head + ["", "Osculating elements at the epoch, then the two-body summary:"]
-    lines += [
-        f"  {label:<{width}}  {value} {unit}".rstrip() if label else ""
-        for label, value, unit in rows
-    ]
+    for label, value, unit in rows:
+        text = f"  {label:<{label_width}}  {value:>{value_width}} {unit}" if label else ""
+        lines.append(text.rstrip())
     lines.append("")
     lines += [f"warning: {note}" for note in data["warnings"]]
     lines.append(f"caution: {data['caution']}")
