@@ -1,0 +1,163 @@
+"""The environment verbs end to end on the Kestrel-2 starter case."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import warnings
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from orbitledger.cli.main import main
+
+EXAMPLE = Path(__file__).resolve().parents[1] / "examples" / "candidate-a.case.json"
+
+
+def _case(tmp_path: Path, **changes) -> Path:
+    data = json.loads(EXAMPLE.read_text())
+    data["window"] = {"start_utc": None, "duration_s": 21600.0, "step_s": 10.0}
+    for key, value in changes.items():
+        data[key] = value
+    path = tmp_path / "kestrel.case.json"
+    path.write_text(json.dumps(data))
+    return path
+
+
+def _run(capsys, *argv) -> tuple[int, str, str]:
+    code = main(list(argv))
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+def test_passes_json_and_astropy_elevation_at_max(tmp_path: Path, capsys) -> None:
+    path = _case(tmp_path, window={"start_utc": None, "duration_s": 21600.0, "step_s": 1.0})
+    code, out, err = _run(capsys, "passes", str(path), "--json")
+    assert code == 0
+    data = json.loads(out)
+    # 2027 lies beyond the announced leap seconds (IERS Bulletin C 70): flagged, warned once.
+    assert data["utc_tai_extrapolated"] is True
+    assert err.count("UTC - TAI is extrapolated") == 1
+    assert len(data["passes"]) >= 3
+    masks = {s["name"]: s["elevation_mask_deg"] for s in data["stations"]}
+    for p in data["passes"]:
+        assert p["max_elevation_deg"] >= masks[p["station"]] - 1e-9
+        assert 0.0 < p["duration_s"] < 20 * 60  # LEO passes last minutes (common practice)
+    # Outside check: astropy's AltAz of the ephemeris verb's ITRF position at the time of
+    # maximum elevation (no refraction) reproduces the pass table's maximum to 0.002 deg.
+    from astropy import units as u
+    from astropy.coordinates import ITRS, AltAz, CartesianRepresentation, EarthLocation
+    from astropy.time import Time
+
+    code, out, _ = _run(capsys, "ephemeris", str(path), "--csv")
+    rows = list(csv.DictReader(io.StringIO(out)))
+    t = np.array([float(r["offset_s"]) for r in rows])
+    best = max(
+        (p for p in data["passes"] if not p["ends_in_view"]), key=lambda p: p["max_elevation_deg"]
+    )
+    k = int(np.argmin(np.abs(t - best["tmax_s"])))
+    station = next(s for s in data["stations"] if s["name"] == best["station"])
+    site = EarthLocation.from_geodetic(
+        lon=station["lon_deg"] * u.deg,
+        lat=station["lat_deg"] * u.deg,
+        height=station["height_km"] * u.km,
+    )
+    r_itrf = np.array([float(rows[k][f"{a}_itrf_km"]) for a in "xyz"])
+    when = Time(rows[k]["time_utc"].rstrip("Z"), scale="utc")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        topo = r_itrf - u.Quantity(site.geocentric).to_value(u.km)
+        aa = ITRS(CartesianRepresentation(topo * u.km), obstime=when, location=site).transform_to(
+            AltAz(obstime=when, location=site, pressure=0 * u.hPa)
+        )
+    # The 1 s sample is within 0.5 s of the maximum, where elevation falls by < 0.001 deg
+    # (curvature of a 45 deg pass about 0.002 deg/s^2).
+    assert aa.alt.deg == pytest.approx(best["max_elevation_deg"], abs=0.002)
+    assert aa.alt.deg <= best["max_elevation_deg"] + 1e-4
+
+
+def test_passes_table_and_coarse_step_warning(tmp_path: Path, capsys) -> None:
+    path = _case(tmp_path, window={"start_utc": None, "duration_s": 21600.0, "step_s": 600.0})
+    code, out, err = _run(capsys, "passes", str(path))
+    assert code == 0
+    assert "too coarse to resolve passes" in err
+    assert "AOS (UTC)" in out and "Harrow Fell" in out and "Caution:" in out
+
+
+def test_eclipses_match_the_cylindrical_closed_form(tmp_path: Path, capsys) -> None:
+    path = _case(tmp_path)
+    code, out, _ = _run(capsys, "eclipses", str(path), "--json", "--cylindrical")
+    assert code == 0
+    data = json.loads(out)
+    a_km = 6378.137 + 540.0  # candidate A: altitude 540 km, e = 0.001
+    h = a_km - 6378.137
+    full = [o for o in data["per_orbit"] if o["end_s"] - o["start_s"] > 5000]
+    assert len(full) >= 2
+    for orbit in full:
+        beta = math.radians(orbit["beta_deg"])
+        # Closed form for a circular orbit (derived in tests/test_eclipses.py); e = 0.001 moves
+        # the radius by 7 km, so the tolerance is 0.003 of the orbit.
+        expected = (
+            math.acos(math.sqrt(h * h + 2 * 6378.137 * h) / (a_km * math.cos(beta))) / math.pi
+        )
+        assert orbit["fraction"] == pytest.approx(expected, abs=3e-3)
+    code, out, _ = _run(capsys, "eclipses", str(path))
+    assert code == 0 and "LTAN" in out and "beta angle" in out
+
+
+def test_groundtrack_and_ephemeris_csv(tmp_path: Path, capsys) -> None:
+    path = _case(tmp_path)
+    code, out, err = _run(capsys, "groundtrack", str(path), "--csv")
+    assert code == 0 and "caution" in err.lower()
+    rows = list(csv.DictReader(io.StringIO(out)))
+    assert len(rows) == 21600 // 10 + 1
+    lat = np.array([float(r["lat_deg"]) for r in rows])
+    assert np.max(np.abs(lat)) < 180.0 - 97.55 + 0.3
+    assert {r["in_eclipse"] for r in rows} == {"true", "false"}
+    code, out, _ = _run(capsys, "ephemeris", str(path), "--csv")
+    rows = list(csv.DictReader(io.StringIO(out)))
+    r_g = np.array([[float(r[f"{a}_gcrf_km"]) for a in "xyz"] for r in rows])
+    r_i = np.array([[float(r[f"{a}_itrf_km"]) for a in "xyz"] for r in rows])
+    assert np.allclose(np.linalg.norm(r_g, axis=1), np.linalg.norm(r_i, axis=1), atol=1e-5)
+    a_km = 6378.137 + 540.0
+    assert np.all(np.abs(np.linalg.norm(r_g, axis=1) - a_km) < a_km * 0.001 + 1e-3)
+
+
+@pytest.mark.parametrize("propagator", ["j2-mean", "numerical"])
+def test_other_propagators(tmp_path: Path, capsys, propagator: str) -> None:
+    path = _case(
+        tmp_path,
+        window={"start_utc": None, "duration_s": 10800.0, "step_s": 30.0},
+        force_model={"propagator": propagator},
+    )
+    code, out, _ = _run(capsys, "passes", str(path), "--json")
+    assert code == 0
+    data = json.loads(out)
+    assert data["propagator"] == propagator and data["model_notes"]
+
+
+@pytest.mark.parametrize(
+    ("changes", "field"),
+    [
+        ({"stations": [{"name": "X", "lat_deg": 95.0, "lon_deg": 0.0}]}, "stations[0].lat_deg"),
+        (
+            {"stations": [{"name": "X", "lat_deg": 5.0, "lon_deg": 0.0, "elevation_mask_deg": -7}]},
+            "elevation_mask_deg",
+        ),
+        ({"window": {"duration_s": -5.0, "step_s": 10.0}}, "window.duration_s"),
+        ({"window": {"duration_s": 3600.0, "step_s": 0.0}}, "window.step_s"),
+        ({"epoch_utc": "2027-13-40T00:00:00Z"}, "epoch_utc"),
+        ({"stations": []}, "stations"),
+    ],
+)
+def test_bad_input_is_one_line_and_exit_2(
+    tmp_path: Path, capsys, changes: dict, field: str
+) -> None:
+    path = _case(tmp_path, **changes)
+    code, out, err = _run(capsys, "passes", str(path))
+    assert code == 2
+    assert field in err and "Traceback" not in err
+    assert len(err.strip().splitlines()) == 1
