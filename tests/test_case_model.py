@@ -376,3 +376,35 @@ def test_models_are_frozen():
     with pytest.raises(pydantic.ValidationError, match="frozen"):
         case.orbit.e = 0.5  # type: ignore[misc]
     assert isinstance(case, Case)
+
+
+# --- warnings: accepted, but never silently --------------------------------------------------
+
+
+def test_the_starter_case_has_no_warnings():
+    assert starter_case().warnings() == []
+
+
+def test_a_window_before_the_epoch_is_warned():
+    case = case_from_data(data(window={"start_utc": "2027-03-21T10:00:00Z"}))
+    notes = case.warnings()
+    assert len(notes) == 1 and "1800 s before the epoch" in notes[0]
+    assert case.window_start_utc == "2027-03-21T10:00:00Z"
+
+
+def test_an_epoch_outside_the_leap_second_table_is_warned():
+    # ERFA's eraDat calls years before 1960 dubious (UTC was not defined by leap seconds then).
+    notes = case_from_data(data(epoch_utc="1957-10-04T19:28:34Z")).warnings()
+    assert any("leap-second table" in note for note in notes)
+
+
+def test_settings_the_propagator_does_not_use_are_warned():
+    notes = case_from_data(data(force_model={"drag": True, "third_body": ["moon"]})).warnings()
+    assert any("only the numerical propagator" in note for note in notes)
+    quiet = case_from_data(data(force_model={"propagator": "numerical", "drag": True}))
+    assert quiet.warnings() == []
+
+
+def test_a_hyperbolic_orbit_is_warned_as_an_escape():
+    hyper = orbit(altitude_km=None, a_km=-20000.0, e=1.5, nu_deg=10.0)
+    assert any("hyperbolic" in note for note in case_from_data(data(orbit=hyper)).warnings())

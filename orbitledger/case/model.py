@@ -10,10 +10,13 @@ import numpy as np
 from pydantic import BeforeValidator, Field, ValidationError, model_validator
 
 from ..kernel.constants import Body
+from ..kernel.elements import Elements
+from ..kernel.summary import orbit_cautions
 from .canonical import canonical_json, fingerprint_of, pretty_json
 from .changes import apply_changes
 from .errors import MISSING, CaseError
 from .fields import CaseModel, UtcText, rule
+from .forms import orbit_elements, orbit_in_form, orbit_state
 from .orbit import ApsidesOrbit, ClassicalOrbit, Orbit
 from .plan import AtEpoch, Budget, Burn
 from .sections import BodySection, EarthOrientation, ForceModel, Meta, Spacecraft, Station, Window
@@ -127,16 +130,12 @@ class Case(CaseModel):
         """The central body for the kernel: its cited constants, with the case's overrides."""
         return self.body.constants()
 
-    def elements(self):
+    def elements(self) -> Elements:
         """Osculating classical elements (kernel ``Elements``, floats) at the epoch, any form."""
-        from .forms import orbit_elements
-
         return orbit_elements(self.orbit, self.body_constants())
 
     def state(self) -> tuple[np.ndarray, np.ndarray]:
         """GCRF position (km) and velocity (km/s) at the epoch, each shape (3,)."""
-        from .forms import orbit_state
-
         return orbit_state(self.orbit, self.body_constants())
 
     def epoch_jd_utc(self) -> tuple[float, float]:
@@ -152,8 +151,6 @@ class Case(CaseModel):
 
     def with_orbit_form(self, form: str) -> Case:
         """The same case with its orbit expressed in another form (classical, apsides, cartesian)."""
-        from .forms import orbit_in_form
-
         data = self.to_data()
         data["orbit"] = orbit_in_form(self.orbit, form, self.body_constants())
         return case_from_data(data)
@@ -189,8 +186,6 @@ class Case(CaseModel):
 
     def warnings(self) -> list[str]:
         """Accepted but worth saying: periapsis inside the body, a window before the epoch..."""
-        from ..kernel.summary import orbit_cautions
-
         notes = [str(note) for note in orbit_cautions(self.elements(), self.body_constants())]
         start = self.window.start_utc
         if start is not None and utc_seconds_between(self.epoch_utc, start) < 0.0:
