@@ -224,7 +224,7 @@ def orbit_plane_figure(
     sweep_orbit: int = 0,
     theme: str | Palette = "light",
     title: str = "Orbit plane (perifocal frame, to scale)",
-    size: int = 560,
+    size: int = 480,
 ):
     """The orbit-plane view of one or more orbits (see ``orbit_plane_data``)."""
     pal = palette_for(theme)
@@ -236,19 +236,11 @@ def orbit_plane_figure(
         x_label=axis_label("x, towards periapsis", "km"),
         y_label=axis_label("y", "km"),
         theme=pal,
-        width=size,
-        height=size,
+        width=None,
+        height=None,
+        frame_width=size,
+        frame_height=size,
         match_aspect=True,
-    )
-    fig.patch(
-        "x_km",
-        "y_km",
-        source=named_source(data, "body"),
-        fill_color=pal.body_fill,
-        fill_alpha=0.45,
-        line_color=pal.ink,
-        line_width=1.0,
-        legend_label=f"{body.name} (equatorial radius)",
     )
     if "sectors" in data:
         src = named_source(data, "sectors")
@@ -258,7 +250,7 @@ def orbit_plane_figure(
             "ys",
             source=src,
             fill_color="colour",
-            fill_alpha=0.30,
+            fill_alpha=0.35,
             line_color=pal.paper,
             line_width=1.0,
             legend_label=f"equal-time sectors ({names[sweep_orbit]})",
@@ -275,48 +267,71 @@ def orbit_plane_figure(
                 tooltip("h dt / 2", "kepler_area_km2", "km^2", "0.000e"),
             ],
         )
+    fig.patch(
+        "x_km",
+        "y_km",
+        source=named_source(data, "body"),
+        fill_color=pal.body_fill,
+        fill_alpha=0.55,
+        line_color=pal.ink,
+        line_width=1.0,
+        legend_label=f"{body.name} (equatorial radius)",
+    )
+    labelled = sweep_orbit if "sectors" in data else 0
     for k in range(n):
-        colour = pal.series_colour(k)
-        conic = fig.line(
-            "x_km",
-            "y_km",
-            source=named_source(data, f"conic-{k}"),
-            line_color=colour,
-            line_width=2.2,
-            legend_label=names[k],
-        )
-        add_hover(
-            fig,
-            [conic],
-            [
-                ("orbit", names[k]),
-                tooltip("true anomaly", "nu_deg", "deg", "0.0"),
-                tooltip("radius", "r_km", "km", "0.0"),
-                tooltip("altitude", "alt_km", "km", "0.0"),
-                tooltip("speed", "speed_km_s", "km/s", "0.000"),
-            ],
-            mode="mouse",
-        )
-        fig.line(
-            "x_km",
-            "y_km",
-            source=named_source(data, f"apse-{k}"),
-            line_color=colour,
-            line_width=1.0,
-            line_dash=[6, 4],
-            legend_label="line of apsides",
-        )
-        axes = named_source(data, f"axes-{k}")
-        fig.segment(
-            "x0",
-            "y0",
-            "x1",
-            "y1",
-            source=axes,
-            line_color=colour,
-            line_width=1.4,
-            legend_label="semi-axes a, b",
-        )
+        _draw_orbit(fig, data, k, names[k], pal, first=k == 0, labelled=k == labelled)
+    finish_legend(fig, pal, outside="right")
+    return fig
+
+
+def _draw_orbit(
+    fig, data: FigureData, k: int, name: str, pal: Palette, *, first: bool, labelled: bool
+) -> None:
+    """One orbit's conic, apsides, foci, semi-axes and position with velocity. Construction
+    elements enter the legend once, and the semi-axis lengths are written for one orbit only,
+    so that overlaid candidates stay readable."""
+
+    def once(text: str) -> dict:
+        return {"legend_label": text} if first else {}
+
+    colour = pal.series_colour(k)
+    conic = fig.line(
+        "x_km",
+        "y_km",
+        source=named_source(data, f"conic-{k}"),
+        line_color=colour,
+        line_width=2.2,
+        legend_label=name,
+    )
+    state_rows = [
+        ("orbit", name),
+        tooltip("true anomaly", "nu_deg", "deg", "0.0"),
+        tooltip("radius", "r_km", "km", "0.0"),
+        tooltip("altitude", "alt_km", "km", "0.0"),
+        tooltip("speed", "speed_km_s", "km/s", "0.000"),
+    ]
+    add_hover(fig, [conic], state_rows, mode="mouse")
+    fig.line(
+        "x_km",
+        "y_km",
+        source=named_source(data, f"apse-{k}"),
+        line_color=colour,
+        line_width=1.0,
+        line_dash=[6, 4],
+        **once("line of apsides"),
+    )
+    axes = named_source(data, f"axes-{k}")
+    fig.segment(
+        "x0",
+        "y0",
+        "x1",
+        "y1",
+        source=axes,
+        line_color=colour,
+        line_width=1.4,
+        **once("semi-axes a, b"),
+    )
+    if labelled:
         fig.add_layout(
             LabelSet(
                 x="lx",
@@ -329,68 +344,60 @@ def orbit_plane_figure(
                 y_offset=4,
             )
         )
-        apsides = fig.scatter(
-            "x_km",
-            "y_km",
-            source=named_source(data, f"apsides-{k}"),
-            marker="diamond",
-            size=11,
-            fill_color=pal.periapsis,
-            line_color=pal.ink,
-            legend_label="periapsis, apoapsis",
-        )
-        foci = fig.scatter(
-            "x_km",
-            "y_km",
-            source=named_source(data, f"foci-{k}"),
-            marker="x",
-            size=10,
-            line_color=pal.focus,
-            line_width=2,
-            legend_label="foci",
-        )
-        add_hover(
-            fig,
-            [apsides],
-            [
-                ("point", "@name"),
-                tooltip("radius", "r_km", "km", "0.0"),
-                tooltip("altitude", "alt_km", "km", "0.0"),
-            ],
-        )
-        add_hover(fig, [foci], [("point", "@name"), tooltip("x", "x_km", "km", "0.0")])
-        now = named_source(data, f"now-{k}")
-        mark = fig.scatter(
-            "x_km",
-            "y_km",
+    aps = named_source(data, f"apsides-{k}")
+    count = len(aps.data["name"])
+    aps.data["marker"] = ["diamond", "square"][:count]
+    aps.data["colour"] = [pal.periapsis, pal.apoapsis][:count]
+    apsides = fig.scatter(
+        "x_km",
+        "y_km",
+        source=aps,
+        marker="marker",
+        size=11,
+        fill_color="colour",
+        line_color=pal.ink,
+        **once("periapsis ◆, apoapsis ■"),
+    )
+    foci = fig.scatter(
+        "x_km",
+        "y_km",
+        source=named_source(data, f"foci-{k}"),
+        marker="x",
+        size=10,
+        line_color=pal.focus,
+        line_width=2,
+        **once("foci (occupied, empty)"),
+    )
+    add_hover(
+        fig,
+        [apsides],
+        [
+            ("point", "@name"),
+            tooltip("radius", "r_km", "km", "0.0"),
+            tooltip("altitude", "alt_km", "km", "0.0"),
+        ],
+    )
+    add_hover(fig, [foci], [("point", "@name"), tooltip("x", "x_km", "km", "0.0")])
+    now = named_source(data, f"now-{k}")
+    mark = fig.scatter(
+        "x_km",
+        "y_km",
+        source=now,
+        size=11,
+        fill_color=colour,
+        line_color=pal.ink,
+        **once("position, velocity (arrow)"),
+    )
+    fig.add_layout(
+        Arrow(
+            end=VeeHead(size=10, line_color=pal.velocity, fill_color=pal.velocity),
+            x_start="x_km",
+            y_start="y_km",
+            x_end="x_end",
+            y_end="y_end",
             source=now,
-            size=11,
-            fill_color=colour,
-            line_color=pal.ink,
-            legend_label="position, velocity",
+            line_color=pal.velocity,
+            line_width=2.0,
         )
-        fig.add_layout(
-            Arrow(
-                end=VeeHead(size=10, line_color=pal.velocity, fill_color=pal.velocity),
-                x_start="x_km",
-                y_start="y_km",
-                x_end="x_end",
-                y_end="y_end",
-                source=now,
-                line_color=pal.velocity,
-                line_width=2.0,
-            )
-        )
-        add_hover(
-            fig,
-            [mark],
-            [
-                ("orbit", names[k]),
-                tooltip("true anomaly", "nu_deg", "deg", "0.0"),
-                tooltip("radius", "r_km", "km", "0.0"),
-                tooltip("altitude", "alt_km", "km", "0.0"),
-                tooltip("speed", "speed_km_s", "km/s", "0.000"),
-            ],
-        )
-    finish_legend(fig, pal, location="top_left")
-    return fig
+    )
+    add_hover(fig, [mark], state_rows)

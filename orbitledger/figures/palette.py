@@ -27,7 +27,7 @@ from dataclasses import dataclass
 
 from ..kernel.errors import InputError
 
-__all__ = ["OKABE_ITO", "Palette", "LIGHT", "DARK", "THEMES", "palette_for"]
+__all__ = ["OKABE_ITO", "Palette", "LIGHT", "DARK", "THEMES", "palette_for", "sequential"]
 
 # Okabe & Ito (2008), the eight CUD colours, by their published names.
 OKABE_ITO = {
@@ -89,7 +89,7 @@ LIGHT = Palette(
         _C["orange"],
         _C["sky_blue"],
     ),
-    body_fill=_C["sky_blue"],
+    body_fill="#B4BFCB",  # neutral: the sectors carry the hues
     land="#E9E6DF",
     coast="#8C8C8C",
     ocean="#FFFFFF",
@@ -120,7 +120,7 @@ DARK = Palette(
         _C["vermillion"],
         _C["blue"],
     ),
-    body_fill=_C["blue"],
+    body_fill="#4A5663",  # neutral: the sectors carry the hues
     land="#2B2B2B",
     coast="#7A7A7A",
     ocean="#111111",
@@ -147,3 +147,18 @@ def palette_for(theme: str | Palette) -> Palette:
         return THEMES[theme]
     except (KeyError, TypeError):
         raise InputError("theme", theme, "must be 'light' or 'dark'") from None
+
+
+def sequential(count: int) -> list[str]:
+    """``count`` colours of cividis, a sequential map designed to read the same with and without
+    colour-vision deficiency and to rise monotonically in lightness (Nunez, Anderton and
+    Renslow, "Optimizing colormaps with consideration for color vision deficiency to enable
+    accurate interpretation of scientific data", PLoS ONE 13(7): e0199239, 2018), as shipped
+    by Bokeh (``bokeh.palettes.Cividis256``). Dark = low values."""
+    from bokeh.palettes import Cividis256
+
+    if count < 1:
+        raise InputError("count", count, "needs at least one colour")
+    if count == 1:
+        return [Cividis256[0]]
+    return [Cividis256[round(k * 255 / (count - 1))] for k in range(count)]

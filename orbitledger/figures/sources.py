@@ -29,7 +29,7 @@ def named_source(data: FigureData, name: str) -> ColumnDataSource:
 
 def sources_of(fig) -> dict[str, ColumnDataSource]:
     """Every named ColumnDataSource of a figure or layout, by name."""
-    return {s.name: s for s in fig.select(type=ColumnDataSource) if s.name}
+    return {s.name: s for s in fig.select({"type": ColumnDataSource}) if s.name}
 
 
 def update_figure(fig, data: Mapping[str, Mapping]) -> None:
