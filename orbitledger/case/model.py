@@ -21,7 +21,7 @@ from .orbit import ApsidesOrbit, ClassicalOrbit, Orbit
 from .plan import AtEpoch, Budget, Burn
 from .sections import BodySection, EarthOrientation, ForceModel, Meta, Spacecraft, Station, Window
 from .source import Source
-from .utc import utc_is_outside_leap_table, utc_seconds_between, utc_to_jd
+from .utc import utc_seconds_between, utc_to_jd
 from .validation import case_error_from_validation, check_text_values
 
 __all__ = ["Case", "SCHEMA_ID", "case_from_data", "case_json_schema"]
@@ -194,12 +194,6 @@ class Case(CaseModel):
                 f"window.start_utc {start} is {seconds:.0f} s before the epoch: "
                 "the analysis propagates backwards from the epoch"
             )
-        for path, text in (("epoch_utc", self.epoch_utc), ("window.start_utc", start)):
-            if text is not None and utc_is_outside_leap_table(text):
-                notes.append(
-                    f"{path} {text} lies outside the leap-second table (before 1960 or far ahead): "
-                    "UTC-TAI there is ERFA's extrapolation"
-                )
         if self.body.name != "Earth" and (self.stations or self.source is not None):
             notes.append(
                 f"stations and TLE/OPM sources are Earth-fixed; the central body is {self.body.name}"

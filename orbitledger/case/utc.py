@@ -13,7 +13,7 @@ import warnings
 
 import erfa
 
-__all__ = ["normalise_utc", "utc_to_jd", "utc_is_outside_leap_table", "utc_seconds_between"]
+__all__ = ["normalise_utc", "utc_to_jd", "utc_seconds_between"]
 
 _ISO_UTC = re.compile(
     r"^(?P<y>\d{4})-(?P<mo>\d{2})-(?P<d>\d{2})[Tt ](?P<h>\d{2}):(?P<mi>\d{2})"
@@ -43,8 +43,10 @@ def _fields(text: str) -> tuple[int, int, int, int, int, float, str]:
     )
 
 
-def _dtf2d(y: int, mo: int, d: int, h: int, mi: int, s: float) -> tuple[float, float, bool]:
-    """ERFA's calendar check; returns (jd1, jd2, dubious_year)."""
+def _dtf2d(y: int, mo: int, d: int, h: int, mi: int, s: float) -> tuple[float, float]:
+    """ERFA's calendar check (eraDtf2d); returns the two-part UTC quasi Julian date."""
+    if y < 1960:  # as the kernel's parse_utc: UTC with leap seconds begins in 1960
+        raise ValueError("lies before 1960, where UTC is not defined")
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", erfa.ErfaWarning)
         try:
@@ -52,10 +54,11 @@ def _dtf2d(y: int, mo: int, d: int, h: int, mi: int, s: float) -> tuple[float, f
         except erfa.ErfaError as err:
             reason = str(err).split('"')[-2] if '"' in str(err) else str(err)
             raise ValueError(f"not a valid UTC date and time ({reason})") from None
-    notes = " ".join(str(w.message) for w in caught)
-    if "after end of day" in notes:
+    # "dubious year" (beyond the leap-second table) is left to the kernel, which records
+    # the extrapolation of UTC - TAI where a computation uses it.
+    if any("after end of day" in str(w.message) for w in caught):
         raise ValueError("a second of 60 exists only in a leap second (IERS), not on this day")
-    return float(jd1), float(jd2), "dubious year" in notes
+    return float(jd1), float(jd2)
 
 
 def normalise_utc(text: str) -> str:
@@ -72,15 +75,7 @@ def normalise_utc(text: str) -> str:
 
 def utc_to_jd(text: str) -> tuple[float, float]:
     """Two-part Julian date (UTC, ERFA's quasi-JD convention for leap-second days) of a UTC text."""
-    y, mo, d, h, mi, s, _ = _fields(text)
-    jd1, jd2, _dubious = _dtf2d(y, mo, d, h, mi, s)
-    return jd1, jd2
-
-
-def utc_is_outside_leap_table(text: str) -> bool:
-    """True when ERFA calls the year dubious: before 1960 or past its leap-second table's reach."""
-    y, mo, d, h, mi, s, _ = _fields(text)
-    return _dtf2d(y, mo, d, h, mi, s)[2]
+    return _dtf2d(*_fields(text)[:6])
 
 
 def utc_seconds_between(start: str, end: str) -> float:
@@ -89,7 +84,7 @@ def utc_seconds_between(start: str, end: str) -> float:
     Computed in TAI (ERFA eraUtctai), so a leap second in between counts as the second it is.
     """
     with warnings.catch_warnings():
-        warnings.simplefilter("ignore", erfa.ErfaWarning)  # dubious year: already reported
+        warnings.simplefilter("ignore", erfa.ErfaWarning)  # dubious year: the kernel records it
         a1, a2 = erfa.utctai(*utc_to_jd(start))
         b1, b2 = erfa.utctai(*utc_to_jd(end))
     return float(((b1 - a1) + (b2 - a2)) * 86400.0)
