@@ -119,6 +119,10 @@ def test_dense_output_matches_the_integrated_samples_and_runs_backwards():
     assert np.linalg.norm(back.r_km[0] - r0) < 0.1 * METRE
     with pytest.raises(InputError, match="t_s"):
         res.state_at(t[-1] + 100.0)
+    repeated = propagate_cowell(r0, v0, [0.0, 1800.0, 1800.0, 3600.0], force_model=ForceModel(4))
+    assert repeated.t_s.tolist() == [0.0, 1800.0, 1800.0, 3600.0]
+    assert np.array_equal(repeated.r_km[1], repeated.r_km[2])
+    assert np.linalg.norm(repeated.r_km[3] - res.r_km[2]) < 1.0 * MM
 
 
 def test_progress_is_reported_per_day_and_results_are_unchanged():

@@ -185,6 +185,8 @@ def test_total_acceleration_sums_the_chosen_terms_and_broadcasts():
     assert np.allclose(total, parts, rtol=0, atol=1e-18)
     one = acceleration_km_s2(model, r[2], v[2], (jd[0][2], jd[1][2]))
     assert np.allclose(one, total[2], rtol=0, atol=1e-18)
+    given = acceleration_km_s2(model, r, v, sun_moon_km=(r_sun, r_moon))
+    assert np.array_equal(given, total)
     # Point mass alone: mu / r^2 inward (Newton).
     g = acceleration_km_s2(ForceModel(), r, v)
     assert np.allclose(np.linalg.norm(g, axis=1), MU / (RE + 450.0) ** 2, rtol=1e-14)

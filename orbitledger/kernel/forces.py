@@ -161,9 +161,9 @@ def third_body_acceleration_km_s2(
     r = np.asarray(r_km, dtype=float)
     s = np.asarray(r_body_km, dtype=float)
     d = s - r
-    dn = np.linalg.norm(d, axis=-1, keepdims=True)
-    sn = np.linalg.norm(s, axis=-1, keepdims=True)
-    return mu_body_km3_s2 * (d / dn**3 - s / sn**3)
+    d2 = (d * d).sum(axis=-1, keepdims=True)
+    s2 = (s * s).sum(axis=-1, keepdims=True)
+    return mu_body_km3_s2 * (d / (d2 * np.sqrt(d2)) - s / (s2 * np.sqrt(s2)))
 
 
 def sun_moon_positions_gcrf_km(
@@ -238,11 +238,14 @@ def acceleration_km_s2(
     r_km: ArrayLike,
     v_km_s: ArrayLike,
     jd_tt: tuple[ArrayLike, ArrayLike] | None = None,
+    *,
+    sun_moon_km: tuple[ArrayLike, ArrayLike] | None = None,
 ) -> np.ndarray:
     """Total acceleration of ``model`` at positions/velocities ``(..., 3)``, km/s^2, GCRF.
 
-    ``jd_tt`` (two-part TT Julian date, broadcasting with the leading shape) is needed only
-    when third bodies act.
+    When third bodies act, either ``jd_tt`` (two-part TT Julian date, broadcasting with the
+    leading shape) or ``sun_moon_km``, the geocentric Sun and Moon positions already known
+    (e.g. interpolated by a propagator), is needed.
     """
     r = np.asarray(r_km, dtype=float)
     body = model.body
@@ -254,9 +257,12 @@ def acceleration_km_s2(
             r, v_km_s, model.ballistic_coefficient_kg_m2, model.solar_activity, body
         )
     if model.third_bodies:
-        if jd_tt is None:
+        if sun_moon_km is not None:
+            r_sun, r_moon = sun_moon_km
+        elif jd_tt is not None:
+            r_sun, r_moon = sun_moon_positions_gcrf_km(*jd_tt)
+        else:
             raise InputError("jd_tt", None, "an epoch is needed for third-body accelerations")
-        r_sun, r_moon = sun_moon_positions_gcrf_km(*jd_tt)
         if "sun" in model.third_bodies:
             acc = acc + third_body_acceleration_km_s2(r, r_sun, SUN.mu_km3_s2)
         if "moon" in model.third_bodies:
