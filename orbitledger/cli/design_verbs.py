@@ -190,7 +190,7 @@ def budget_for_case(
 
 def _num(x: Any) -> Any:
     if isinstance(x, np.ndarray):
-        return [_num(v) for v in x.tolist()]
+        return _num(x.tolist())
     if isinstance(x, (np.floating, np.integer)):
         x = x.item()
     if isinstance(x, float) and not math.isfinite(x):

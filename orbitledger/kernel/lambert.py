@@ -47,7 +47,9 @@ __all__ = [
 
 PLANE_TOLERANCE = 1e-9  # |sin(transfer angle)| below which the transfer plane is ill-defined
 _MAX_ITERATIONS = 12
-_X_TOL = 1e-13
+# Householder stops once a step is below this (zero-rev, multi-rev): with third-order
+# convergence the error left after a step of 1e-5 is of order 1e-15 (tests check 1 m landings).
+_X_TOL = (1e-5, 1e-8)
 
 
 class LambertPlaneWarning(UserWarning):
@@ -80,49 +82,71 @@ def _hyp2f1_series(z: np.ndarray) -> np.ndarray:
     return total
 
 
-def _tof(x: np.ndarray, lam: np.ndarray, n_rev: int) -> np.ndarray:
-    """Non-dimensional time of flight T(x) (Izzo 2015, Eqs. 9, 18, 20)."""
+def _tof_lagrange(x: np.ndarray, lam: np.ndarray, n_rev: int) -> np.ndarray:
+    """Lagrange's form of T(x) (Izzo 2015, Eq. 9), used for 0.01 <= |x - 1| < 0.2."""
     lam2 = lam * lam
-    e = x * x - 1.0
-    rho = np.abs(e)
-    dist = np.abs(x - 1.0)
     with np.errstate(invalid="ignore", divide="ignore"):
-        z = np.sqrt(1.0 + lam2 * e)
-        # Lancaster-Blanchard (Eq. 18)
-        y = np.sqrt(rho)
-        g = x * z - lam * e
-        d_ell = n_rev * math.pi + np.arccos(np.clip(g, -1.0, 1.0))
-        f = y * (z - lam * x)
-        d_hyp = np.log(np.maximum(f + g, 1e-300))
-        d = np.where(e < 0.0, d_ell, d_hyp)
-        t_lancaster = (x - lam * z - d / y) / e
-        # Lagrange (Eq. 9) where Lancaster loses digits, 0.01 < |x - 1| < 0.2
         a = 1.0 / (1.0 - x * x)
-        ell = a > 0.0
         sa = np.sqrt(np.abs(a))
+        sign = np.where(lam < 0.0, -1.0, 1.0)
+        ratio = np.sqrt(np.abs(lam2 / a))
         alfa_e = 2.0 * np.arccos(np.clip(x, -1.0, 1.0))
-        beta_e = 2.0 * np.arcsin(np.clip(np.sqrt(np.abs(lam2 / a)), 0.0, 1.0))
-        alfa_h = 2.0 * np.arccosh(np.maximum(x, 1.0))
-        beta_h = 2.0 * np.arcsinh(np.sqrt(np.abs(lam2 / a)))
-        beta_e = np.where(lam < 0.0, -beta_e, beta_e)
-        beta_h = np.where(lam < 0.0, -beta_h, beta_h)
+        beta_e = sign * 2.0 * np.arcsin(np.clip(ratio, 0.0, 1.0))
         t_ell = (
             a
             * sa
             * ((alfa_e - np.sin(alfa_e)) - (beta_e - np.sin(beta_e)) + 2.0 * math.pi * n_rev)
             / 2.0
         )
+        alfa_h = 2.0 * np.arccosh(np.maximum(x, 1.0))
+        beta_h = sign * 2.0 * np.arcsinh(ratio)
         t_hyp = -a * sa * ((beta_h - np.sinh(beta_h)) - (alfa_h - np.sinh(alfa_h))) / 2.0
-        t_lagrange = np.where(ell, t_ell, t_hyp)
-        # Battin's series (Eq. 20) near the parabola, |x - 1| < 0.01
-        eta = z - lam * x
-        s1 = 0.5 * (1.0 - lam - x * eta)
-        q = 4.0 / 3.0 * _hyp2f1_series(s1)
-        t_battin = (eta**3 * q + 4.0 * lam * eta) / 2.0
-        if n_rev:
-            t_battin = t_battin + n_rev * math.pi / rho**1.5
-    out = np.where(dist < 0.2, t_lagrange, t_lancaster)
-    return np.where(dist < 0.01, t_battin, out)
+    return np.where(a > 0.0, t_ell, t_hyp)
+
+
+def _tof_battin(x: np.ndarray, lam: np.ndarray, n_rev: int) -> np.ndarray:
+    """Battin's hypergeometric form of T(x) (Izzo 2015, Eq. 20), for |x - 1| < 0.01."""
+    e = x * x - 1.0
+    z = np.sqrt(1.0 + lam * lam * e)
+    eta = z - lam * x
+    s1 = 0.5 * (1.0 - lam - x * eta)
+    q = 4.0 / 3.0 * _hyp2f1_series(s1)
+    t = (eta**3 * q + 4.0 * lam * eta) / 2.0
+    if n_rev:
+        with np.errstate(divide="ignore"):
+            t = t + n_rev * math.pi / np.abs(e) ** 1.5
+    return t
+
+
+def _tof(x: np.ndarray, lam: np.ndarray, n_rev: int) -> np.ndarray:
+    """Non-dimensional time of flight T(x) (Izzo 2015, Eqs. 9, 18, 20).
+
+    Lancaster-Blanchard's form everywhere, then Lagrange's and Battin's forms computed only
+    on the (few) elements near the parabola x = 1 where Lancaster's loses digits.
+    """
+    lam2 = lam * lam
+    e = x * x - 1.0
+    with np.errstate(invalid="ignore", divide="ignore"):
+        z = np.sqrt(1.0 + lam2 * e)
+        y = np.sqrt(np.abs(e))
+        g = x * z - lam * e
+        ell = e < 0.0
+        d = np.where(
+            ell,
+            n_rev * math.pi + np.arccos(np.clip(g, -1.0, 1.0)),
+            np.log(np.maximum(y * (z - lam * x) + g, 1e-300)),
+        )
+        out = (x - lam * z - d / y) / e
+    dist = np.abs(x - 1.0)
+    near = np.flatnonzero(dist < 0.2)
+    if near.size:
+        xs, ls = x[near], lam[near]
+        t_near = _tof_lagrange(xs, ls, n_rev)
+        closest = dist[near] < 0.01
+        if np.any(closest):
+            t_near[closest] = _tof_battin(xs[closest], ls[closest], n_rev)
+        out[near] = t_near
+    return out
 
 
 def _derivatives(x: np.ndarray, t: np.ndarray, lam: np.ndarray):
@@ -141,25 +165,28 @@ def _derivatives(x: np.ndarray, t: np.ndarray, lam: np.ndarray):
 
 
 def _householder(x0: np.ndarray, t_target: np.ndarray, lam: np.ndarray, n_rev: int) -> np.ndarray:
-    """Solve T(x) = T by Householder's method on arrays, with a convergence mask."""
+    """Solve T(x) = T by Householder's method on arrays; each iteration works only on the
+    problems not yet converged (index compression, so late iterations cost little)."""
     x = x0.copy()
-    active = np.isfinite(x)
+    idx = np.flatnonzero(np.isfinite(x))
     for _ in range(_MAX_ITERATIONS):
-        if not np.any(active):
+        if idx.size == 0:
             break
-        t = _tof(x, lam, n_rev)
-        delta = t - t_target
-        dt, ddt, dddt = _derivatives(x, t, lam)
+        xa, la = x[idx], lam[idx]
+        t = _tof(xa, la, n_rev)
+        delta = t - t_target[idx]
+        dt, ddt, dddt = _derivatives(xa, t, la)
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             step = (
                 delta
                 * (dt * dt - delta * ddt / 2.0)
                 / (dt * (dt * dt - delta * ddt) + dddt * delta * delta / 6.0)
             )
-        step = np.where(active & np.isfinite(step), step, 0.0)
-        x_new = np.clip(x - step, -1.0 + 1e-15, np.inf)
-        active = active & (np.abs(x_new - x) > _X_TOL)
-        x = x_new
+        ok = np.isfinite(step)
+        x_new = np.clip(xa - np.where(ok, step, 0.0), -1.0 + 1e-15, np.inf)
+        moved = np.abs(x_new - xa) > _X_TOL[1 if n_rev else 0]
+        x[idx] = x_new
+        idx = idx[ok & moved]
     return x
 
 
@@ -217,38 +244,82 @@ def solve_lambert(
     if branch not in ("low", "high"):
         raise InputError("branch", branch, 'must be "low" or "high"')
     shape = np.broadcast_shapes(r1.shape[:-1], r2.shape[:-1], tof.shape, np.shape(prograde))
-    r1 = np.broadcast_to(r1, shape + (3,))
-    r2 = np.broadcast_to(r2, shape + (3,))
-    tof = np.broadcast_to(tof, shape)
-    pro = np.broadcast_to(np.asarray(prograde, dtype=bool), shape)
+    # The solver works on flat component arrays (3, n): one problem per column.
+    a1 = np.ascontiguousarray(np.broadcast_to(r1, shape + (3,)).reshape(-1, 3).T)
+    a2 = np.ascontiguousarray(np.broadcast_to(r2, shape + (3,)).reshape(-1, 3).T)
+    t_flat = np.broadcast_to(tof, shape).reshape(-1)
+    pro = np.broadcast_to(np.asarray(prograde, dtype=bool), shape).reshape(-1)
+    out = _solve_flat(a1, a2, t_flat, pro, mu, n_rev, branch)
 
-    r1n = np.linalg.norm(r1, axis=-1)
-    r2n = np.linalg.norm(r2, axis=-1)
+    def back(x: np.ndarray) -> np.ndarray:
+        return x.reshape(shape)
+
+    def back_vec(x: np.ndarray) -> np.ndarray:
+        return x.T.reshape(shape + (3,))
+
+    return LambertSolution(
+        v1_km_s=back_vec(out["v1"]),
+        v2_km_s=back_vec(out["v2"]),
+        a_km=back(out["a"]),
+        x=back(out["x"]),
+        transfer_angle_rad=back(out["theta"]),
+        infeasible=back(out["infeasible"]),
+        plane_ill_defined=back(out["ill"]),
+        tof_min_s=None if out["tof_min"] is None else back(out["tof_min"]),
+    )
+
+
+def _cross(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Cross product of (3, n) component arrays."""
+    return np.stack(
+        [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]]
+    )
+
+
+def _norm(a: np.ndarray) -> np.ndarray:
+    return np.sqrt(a[0] * a[0] + a[1] * a[1] + a[2] * a[2])
+
+
+def _solve_flat(
+    r1: np.ndarray,
+    r2: np.ndarray,
+    tof: np.ndarray,
+    pro: np.ndarray,
+    mu: float,
+    n_rev: int,
+    branch: str,
+) -> dict:
+    """Izzo (2015), Algorithm 1, on (3, n) positions and (n,) times of flight."""
+    r1n = _norm(r1)
+    r2n = _norm(r2)
     if np.any(r1n == 0.0) or np.any(r2n == 0.0):
         raise InputError("r1_km/r2_km", "0", "a position at the centre of the body")
-    c = np.linalg.norm(r2 - r1, axis=-1)
+    c = _norm(r2 - r1)
     s = 0.5 * (r1n + r2n + c)
-    ir1 = r1 / r1n[..., None]
-    ir2 = r2 / r2n[..., None]
-    h = np.cross(ir1, ir2)
-    hn = np.linalg.norm(h, axis=-1)
+    ir1 = r1 / r1n
+    ir2 = r2 / r2n
+    h = _cross(ir1, ir2)
+    hn = _norm(h)
     ill = hn < PLANE_TOLERANCE
-    # Fallback plane: normal closest to +z among those perpendicular to r1 (+x if r1 is along z).
-    ref = np.where(np.abs(ir1[..., 2:3]) > 1.0 - 1e-12, [1.0, 0.0, 0.0], [0.0, 0.0, 1.0])
-    h_fb = ref - np.sum(ref * ir1, axis=-1, keepdims=True) * ir1
-    h_fb = h_fb / np.linalg.norm(h_fb, axis=-1, keepdims=True)
-    ih = np.where(ill[..., None], h_fb, h / np.where(hn > 0.0, hn, 1.0)[..., None])
-    # Transfer "short way" when the plane's normal points the way the motion asks for.
+    cos_theta = np.clip(ir1[0] * ir2[0] + ir1[1] * ir2[1] + ir1[2] * ir2[2], -1.0, 1.0)
     sense = np.where(pro, 1.0, -1.0)
-    ih_oriented = np.where((sense * ih[..., 2] < 0.0)[..., None] & ~ill[..., None], -ih, ih)
-    ih_oriented = np.where(ill[..., None], sense[..., None] * ih, ih_oriented)
-    cos_theta = np.clip(np.sum(ir1 * ir2, axis=-1), -1.0, 1.0)
-    # An ill-defined plane with r2 along r1 is taken as a full turn (360 deg), else as 180 deg.
-    long_way = np.where(ill, cos_theta > 0.0, np.sum(h * ih_oriented, axis=-1) < 0.0)
+    # Orbit normal: along +-h, the sign chosen so that its z component has the asked sense.
+    flip = np.where(sense * h[2] < 0.0, -1.0, 1.0)
+    ih = h * (flip / np.where(hn > 0.0, hn, 1.0))
+    long_way = flip < 0.0
+    if np.any(ill):
+        # Fallback plane: normal closest to +z among those perpendicular to r1 (+x if r1 is
+        # along z), oriented by the asked sense; r2 along r1 is a full turn, else 180 deg.
+        k = np.flatnonzero(ill)
+        u = ir1[:, k]
+        ref = np.where(np.abs(u[2]) > 1.0 - 1e-12, [[1.0], [0.0], [0.0]], [[0.0], [0.0], [1.0]])
+        fb = ref - np.sum(ref * u, axis=0) * u
+        ih[:, k] = sense[k] * fb / _norm(fb)
+        long_way[k] = cos_theta[k] > 0.0
     lam = np.sqrt(np.clip(1.0 - c / s, 0.0, 1.0))
     lam = np.where(long_way, -lam, lam)
-    it1 = np.cross(ih_oriented, ir1)
-    it2 = np.cross(ih_oriented, ir2)
+    it1 = _cross(ih, ir1)
+    it2 = _cross(ih, ir2)
     theta = np.arccos(cos_theta)
     theta = np.where(long_way, 2.0 * math.pi - theta, theta)
 
@@ -259,11 +330,15 @@ def solve_lambert(
     if n_rev == 0:
         t00 = np.arccos(lam) + lam * np.sqrt(1.0 - lam2)
         t1 = 2.0 / 3.0 * (1.0 - lam3)
+        # Izzo (2015), Eq. 30: the initial guess in three regimes of T.
+        x0 = -(t_nd - t00) / (t_nd - t00 + 4.0)
+        low = np.flatnonzero(t_nd <= t1)
+        mid = np.flatnonzero((t_nd > t1) & (t_nd < t00))
         with np.errstate(invalid="ignore", divide="ignore"):
-            x_a = -(t_nd - t00) / (t_nd - t00 + 4.0)
-            x_b = t1 * (t1 - t_nd) / (2.0 / 5.0 * (1.0 - lam2 * lam3) * t_nd) + 1.0
-            x_c = (t_nd / t00) ** (math.log(2.0) / np.log(t1 / t00)) - 1.0
-        x0 = np.where(t_nd >= t00, x_a, np.where(t_nd <= t1, x_b, x_c))
+            tl, ll = t_nd[low], lam[low]
+            x0[low] = t1[low] * (t1[low] - tl) / (0.4 * (1.0 - ll**5) * tl) + 1.0
+            tm = t_nd[mid]
+            x0[mid] = (tm / t00[mid]) ** (math.log(2.0) / np.log(t1[mid] / t00[mid])) - 1.0
         x = _householder(x0, t_nd, lam, 0)
         infeasible = ~np.isfinite(x)
     else:
@@ -289,24 +364,23 @@ def solve_lambert(
         rho = np.where(c > 0.0, (r1n - r2n) / c, 0.0)
         sigma = np.sqrt(np.clip(1.0 - rho * rho, 0.0, 1.0))
         y = np.sqrt(1.0 - lam2 + lam2 * x * x)
-        vr1 = gamma * ((lam * y - x) - rho * (lam * y + x)) / r1n
-        vr2 = -gamma * ((lam * y - x) + rho * (lam * y + x)) / r2n
+        ly = lam * y
+        vr1 = gamma * ((ly - x) - rho * (ly + x)) / r1n
+        vr2 = -gamma * ((ly - x) + rho * (ly + x)) / r2n
         vt = gamma * sigma * (y + lam * x)
-    v1 = vr1[..., None] * ir1 + (vt / r1n)[..., None] * it1
-    v2 = vr2[..., None] * ir2 + (vt / r2n)[..., None] * it2
-    a_min = s / 2.0
-    with np.errstate(divide="ignore"):
-        a = a_min / (1.0 - x * x)
-    return LambertSolution(
-        v1_km_s=v1,
-        v2_km_s=v2,
-        a_km=a,
-        x=x,
-        transfer_angle_rad=theta,
-        infeasible=infeasible,
-        plane_ill_defined=ill,
-        tof_min_s=tof_min_s,
-    )
+        a = (s / 2.0) / (1.0 - x * x)
+    v1 = vr1 * ir1 + (vt / r1n) * it1
+    v2 = vr2 * ir2 + (vt / r2n) * it2
+    return {
+        "v1": v1,
+        "v2": v2,
+        "a": a,
+        "x": x,
+        "theta": theta,
+        "infeasible": infeasible,
+        "ill": ill,
+        "tof_min": tof_min_s,
+    }
 
 
 def lambert(
