@@ -36,12 +36,59 @@ def case_path(tmp_path: Path) -> Path:
 
 @pytest.fixture
 def editor(case_path: Path) -> CaseEditor:
-    return orbitledger.open_case(case_path).editor()
+    # The window results (eclipses, contacts, lifetime) have their own test below; here they
+    # would only compete for the CPU.
+    # Figures are checked in their own test below, too.
+    return CaseEditor(orbitledger.open_case(case_path), window_results=False, figures=[])
 
 
 def _periapsis_alt_km(altitude_km: float, e: float) -> float:
     a = R_EQ_KM + altitude_km  # altitude_km is a - R_eq (docs/case-file.md)
     return a * (1.0 - e) - R_EQ_KM
+
+
+def test_open_case_editor_shows_window_results_from_the_background(case_path: Path) -> None:
+    editor = orbitledger.open_case(case_path).editor()
+    assert isinstance(editor, CaseEditor)
+    assert editor._slow_job.wait(120.0) and editor._slow_job.state == "done"
+    s = editor.summary
+    # Cylindrical-shadow eclipse fraction of a circular orbit at beta angle b:
+    # f = acos(sqrt(h^2 + 2 R h) / ((R + h) cos b)) / pi (Wertz and Larson, Space Mission
+    # Analysis and Design, 3rd ed., Eq. 5-5; from memory). e = 0.001 is near enough circular;
+    # the conical shadow with penumbra differs by a few seconds per orbit.
+    h = 540.0
+    ratio = math.sqrt(h**2 + 2 * R_EQ_KM * h) / (
+        (R_EQ_KM + h) * math.cos(math.radians(s["beta_angle_deg"]))
+    )
+    expected = math.acos(ratio) / math.pi
+    assert abs(s["eclipse_fraction_mean"] - expected) * s["period_s"] < 30.0  # seconds per orbit
+    assert 'data-result="eclipse_fraction_mean"' in editor.results_panel.table.value
+
+
+def test_figures_update_in_place(case_path: Path) -> None:
+    editor = CaseEditor(orbitledger.open_case(case_path), window_results=False)
+    names = [f.name for f in editor._figures]
+    assert {"orbit plane", "ground track"} <= set(names)
+    plane = editor._figures[names.index("orbit plane")]
+    track = editor._figures[names.index("ground track")]
+    models = (plane.model, track.model)
+    sources = dict(plane._sources)
+    before = {k: {c: np.array(v, copy=True) for c, v in s.data.items()} for k, s in sources.items()}
+    editor.apply({"orbit.e": 0.05})
+    assert (plane.model, track.model) == models  # same Bokeh models on screen, no rebuild
+    changed = [
+        k
+        for k, s in sources.items()
+        if any(not np.array_equal(np.asarray(s.data[c]), before[k][c]) for c in s.data)
+    ]
+    assert changed  # the conic's columns follow the new eccentricity
+    # The drawn periapsis distance follows r_p = a (1 - e) (Vallado Eq. 2-57) to 1 m.
+    conic = sources[next(k for k in sources if k.startswith("conic"))].data
+    r = np.hypot(np.asarray(conic["x_km"]), np.asarray(conic["y_km"]))
+    assert abs(r.min() - (R_EQ_KM + 540.0) * (1 - 0.05)) < 1e-3
+    editor.apply({"stations": [s.model_dump() for s in editor.case.stations[:2]]})
+    assert track.model is not models[1]  # fewer stations: that figure was rebuilt
+    assert plane.model is models[0]
 
 
 def test_opening_shows_the_case_and_its_results(editor: CaseEditor) -> None:

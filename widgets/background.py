@@ -38,7 +38,7 @@ class Progress:
     def __call__(self, fraction: float, text: str = "") -> None:
         if self.cancelled:
             raise JobCancelled()
-        self._job._report(fraction, text)
+        self._job._report(fraction, text, self._cancel)
 
 
 class BackgroundJob:
@@ -94,15 +94,15 @@ class BackgroundJob:
         return not self._finished.is_set()
 
     def start(self, fn: Callable[[Progress], Any] | None = None) -> None:
-        """Start the job (cancelling a run still going); returns at once."""
+        """Start the job; returns at once. A run still going is superseded: it is told to
+        stop at its next progress report and its outcome is dropped (nobody waits for it)."""
         if fn is not None:
             self.fn = fn
         if self.fn is None:
             raise ValueError(f"{self.title}: no computation to run")
-        self.cancel()
-        self.wait()
-        self._cancel = threading.Event()
-        self._finished = threading.Event()
+        self._cancel.set()  # the previous run, if any, stops at its next report
+        cancel, finished = threading.Event(), threading.Event()
+        self._cancel, self._finished = cancel, finished
         self.state, self.result, self.error = "running", None, None
         self.bar.value = 0.0
         self.bar.bar_style = ""
@@ -110,7 +110,7 @@ class BackgroundJob:
         self.cancel_button.disabled = False
         self.status.value = "starting\u2026"
         self._thread = threading.Thread(
-            target=self._run, args=(self.fn, self._cancel), name=f"orbitledger {self.title}"
+            target=self._run, args=(self.fn, cancel, finished), name=f"orbitledger {self.title}"
         )
         self._thread.daemon = True
         self._thread.start()
@@ -122,39 +122,54 @@ class BackgroundJob:
             self.status.value = "cancelling\u2026"
 
     def wait(self, timeout: float | None = None) -> bool:
-        """Block until the job has finished; True if it did within ``timeout`` s."""
+        """Block until the current run has finished; True if it did within ``timeout`` s."""
         return self._finished.wait(timeout)
 
-    def _report(self, fraction: float, text: str) -> None:
+    def _current(self, cancel: threading.Event) -> bool:
+        return cancel is self._cancel
+
+    def _report(self, fraction: float, text: str, cancel: threading.Event) -> None:
         now = time.monotonic()
+        if not self._current(cancel):
+            return
         if now - self._last_report < self.min_interval_s and fraction < 1.0:
             return
         self._last_report = now
         self.bar.value = min(max(float(fraction), 0.0), 1.0)
         self.status.value = text or f"{100.0 * self.bar.value:.0f} %"
 
-    def _run(self, fn: Callable[[Progress], Any], cancel: threading.Event) -> None:
+    def _run(
+        self, fn: Callable[[Progress], Any], cancel: threading.Event, finished: threading.Event
+    ) -> None:
         progress = Progress(self, cancel)
+        outcome: tuple[str, Any] = ("cancelled", None)
         try:
             result = fn(progress)
-            if cancel.is_set():
-                raise JobCancelled()
+            if not cancel.is_set():
+                outcome = ("done", result)
         except JobCancelled:
+            pass
+        except Exception as exc:  # a job's failure is shown beside it, never lost
+            outcome = ("failed", exc)
+        if not self._current(cancel):  # superseded by a newer run: drop this outcome
+            finished.set()
+            return
+        state, value = outcome
+        if state == "done":
+            self.state, self.result = "done", value
+            self.bar.value = 1.0
+            self.bar.bar_style = "success"
+            self.status.value = _escape(self.describe(value))
+        elif state == "failed":
+            self.state, self.error = "failed", value
+            self.status.value = f"failed: {_escape(str(value))}"
+            self.bar.bar_style = "danger"
+        else:
             self.state = "cancelled"
             self.status.value = "cancelled"
             self.bar.bar_style = "warning"
-        except Exception as exc:  # a job's failure is shown beside it, never lost
-            self.state, self.error = "failed", exc
-            self.status.value = f"failed: {_escape(str(exc))}"
-            self.bar.bar_style = "danger"
-        else:
-            self.state, self.result = "done", result
-            self.bar.value = 1.0
-            self.bar.bar_style = "success"
-            self.status.value = _escape(self.describe(result))
-        finally:
-            self.cancel_button.disabled = True
-            self._finished.set()
+        self.cancel_button.disabled = True
+        finished.set()
         if self.on_done is not None:
             self.on_done(self)
 

@@ -8,12 +8,13 @@ figure of an edit), and names each figure with its builder and its data partner:
 - ``data(case, screen)`` -> the columns of its named sources, for an update in place
   (``screen`` is the model on screen, so that a view the user turned stays turned).
 
-The ephemeris follows ``force_model.propagator``; a propagator the kernel does not offer yet is
-said so beside the figure, never replaced silently by another.
+The trajectory follows ``force_model.propagator`` (``orbitledger.analysis.case_trajectory``);
+a case the figures cannot draw (an SGP4 case without its TLE) is said so beside the figure.
 """
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -21,25 +22,20 @@ from typing import Any
 import numpy as np
 
 from orbitledger import kernel
+from orbitledger.analysis import case_trajectory as analysis_trajectory
+from orbitledger.kernel.eclipses import shadow_state
+from orbitledger.kernel.groundtrack import ground_track
+from orbitledger.kernel.sun import sun_position_gcrf_km
 
 __all__ = [
     "CASE_FIGURES",
     "CaseFigure",
-    "case_ephemeris",
+    "case_trajectory",
     "case_figures",
     "case_track",
     "overlay_figures",
+    "prime",
 ]
-
-
-@dataclass(frozen=True)
-class Ephemeris:
-    """GCRF samples of a case over its analysis window: dt_s from the epoch, r_km, v_km_s."""
-
-    dt_s: np.ndarray
-    r_km: np.ndarray
-    v_km_s: np.ndarray
-    utc: tuple[np.ndarray, np.ndarray]  # two-part UTC Julian dates of the samples
 
 
 _cache: dict[tuple[int, str], tuple[Any, Any]] = {}
@@ -51,65 +47,62 @@ def _cached(case: Any, key: str, fn: Callable[[Any], Any]) -> Any:
     if hit is not None and hit[0] is case:
         return hit[1]
     value = fn(case)
-    if len(_cache) > 16:
+    if len(_cache) > 24:
         _cache.clear()
     _cache[slot] = (case, value)  # the case is kept so that its id is not reused meanwhile
     return value
 
 
-def _window_offsets_s(case: Any) -> np.ndarray:
+def case_trajectory(case: Any) -> Any:
+    """The kernel ``Trajectory`` of the case over its window (``analysis.case_trajectory``,
+    the one translation of a case into kernel inputs), cached per case."""
+    return _cached(case, "trajectory", analysis_trajectory)
+
+
+def window_offsets_s(case: Any) -> np.ndarray:
+    """Sample times of the analysis window, s after its start: 0, step, ..., duration."""
     window = case.window
-    start = 0.0
-    if window.start_utc is not None:
-        j1, j2 = kernel.parse_utc(case.epoch_utc)
-        s1, s2 = kernel.parse_utc(window.start_utc)
-        start = float(((s1 - j1) + (s2 - j2)) * 86400.0)
     n = int(np.floor(window.duration_s / window.step_s + 1e-9)) + 1
-    return start + window.step_s * np.arange(n)
+    return window.step_s * np.arange(n)
 
 
-def _propagate(case: Any, dt_s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    propagator = case.force_model.propagator
-    body = case.body_constants()
-    r0, v0 = case.state()
-    if propagator == "two-body":
-        return kernel.propagate_two_body(r0, v0, dt_s, mu_km3_s2=body.mu_km3_s2)
-    j2_mean = getattr(kernel, "propagate_j2_mean", None)
-    if propagator == "j2-mean" and j2_mean is not None:
-        return j2_mean(r0, v0, dt_s, body=body)
-    raise ValueError(f"the {propagator!r} propagator is not available for live figures yet")
+def _remembering(traj: Any) -> Any:
+    """The same trajectory, remembering its last state evaluation: the ground track and the
+    shadow flags read the same epochs, so the propagation runs once."""
+    last: dict[str, Any] = {}
+
+    def state_at(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        if last.get("t") is not t:
+            last["t"], last["state"] = t, traj.state_at(t)
+        return last["state"]
+
+    return dataclasses.replace(traj, state_at=state_at)
 
 
-def case_ephemeris(case: Any) -> Ephemeris:
-    """The case's GCRF ephemeris over its analysis window (cached per case)."""
-
-    def compute(c: Any) -> Ephemeris:
-        dt = _window_offsets_s(c)
-        r, v = _propagate(c, dt)
-        j1, j2 = kernel.parse_utc(c.epoch_utc)
-        return Ephemeris(dt, np.asarray(r), np.asarray(v), (j1 + 0.0 * dt, j2 + dt / 86400.0))
-
-    return _cached(case, "ephemeris", compute)
+# The Sun moves about 1 deg a day along the ecliptic, so its position sampled every 30 min and
+# interpolated linearly is off by under a kilometre at 1 au (the chord's sagitta, R theta^2/8,
+# theta = 2.2e-4 rad): nothing at the scale of the Earth's shadow (common practice).
+_SUN_NODE_S = 1800.0
 
 
-def case_track(case: Any) -> dict[str, np.ndarray]:
-    """The ground track of the case over its window: lat_deg, lon_deg, height_km (WGS-84)."""
+def _sun_positions_km(traj: Any, t: np.ndarray) -> np.ndarray:
+    nodes = np.arange(0.0, float(t[-1]) + _SUN_NODE_S, _SUN_NODE_S)
+    at_nodes = sun_position_gcrf_km(traj.times(nodes)).reshape(-1, 3)
+    return np.stack([np.interp(t, nodes, at_nodes[:, k]) for k in range(3)], axis=-1)
 
-    def compute(c: Any) -> dict[str, np.ndarray]:
-        eph = case_ephemeris(c)
-        eop = c.earth_orientation
-        r_itrf = kernel.gcrf_to_itrf(
-            eph.r_km, eph.utc, dut1_s=eop.dut1_s, xp_arcsec=eop.xp_arcsec, yp_arcsec=eop.yp_arcsec
-        )
-        lat, lon, h = kernel.geodetic_from_itrf(r_itrf)
-        return {"lat_deg": lat, "lon_deg": lon, "height_km": h, "times_utc": _utc_ms(eph)}
+
+def case_track(case: Any) -> Any:
+    """The kernel ``GroundTrack`` over the window, with the eclipse flags (conical shadow)."""
+
+    def compute(c: Any) -> Any:
+        traj = _remembering(case_trajectory(c))
+        t = window_offsets_s(c)
+        track = ground_track(traj, t)
+        r, _v = traj.gcrf(t)
+        shadow = shadow_state(r, _sun_positions_km(traj, t), "conical", traj.body) > 0
+        return dataclasses.replace(track, in_eclipse=shadow)
 
     return _cached(case, "track", compute)
-
-
-def _utc_ms(eph: Ephemeris) -> np.ndarray:
-    # Milliseconds since 1970-01-01 UTC (Bokeh's datetime unit); JD 2440587.5 is that instant.
-    return ((eph.utc[0] - 2440587.5) + eph.utc[1]) * 86_400_000.0
 
 
 def _one_orbit(case: Any) -> tuple[np.ndarray, np.ndarray]:
@@ -130,8 +123,21 @@ def _one_orbit(case: Any) -> tuple[np.ndarray, np.ndarray]:
     return _cached(case, "one-orbit", compute)
 
 
+def prime(case: Any) -> None:
+    """Compute (and cache) the kernel results the figures of ``case`` draw from, so that the
+    kernel's share of an edit can be timed apart from building the figure data."""
+    for compute in (case_track, _one_orbit):
+        try:
+            compute(case)
+        except ValueError:
+            pass  # that figure says why, beside itself
+
+
 def _stations(case: Any) -> list[dict[str, Any]]:
     return [s.model_dump(mode="json") for s in (case.stations or [])]
+
+
+_sliders: dict[str, list] = {}
 
 
 def _slider_view(screen: Any) -> dict[str, float]:
@@ -141,7 +147,10 @@ def _slider_view(screen: Any) -> dict[str, float]:
     out: dict[str, float] = {}
     if screen is None:
         return out
-    for slider in screen.select(type=Slider):
+    sliders = _sliders.get(screen.id)
+    if sliders is None:
+        sliders = _sliders[screen.id] = list(screen.select({"type": Slider}))
+    for slider in sliders:
         title = (slider.title or "").lower()
         if "azimuth" in title:
             out["azimuth_deg"] = float(slider.value)
@@ -159,8 +168,37 @@ class CaseFigure:
     data: Callable[[Any, Any], dict[str, dict[str, Any]]]
 
 
+class _Builders:
+    """The shared builders, found in ``orbitledger.figures`` or its modules (None if absent)."""
+
+    _MODULES = {
+        "orbit_plane": "orbit_plane",
+        "inertial": "inertial",
+        "ground_track": "groundtrack",
+        "budget": "budget",
+        "time_series": "timeseries",
+    }
+
+    def __getattr__(self, name: str) -> Any:
+        import importlib
+
+        from orbitledger import figures
+
+        found = getattr(figures, name, None)
+        if found is not None:
+            return found
+        stem = name.removesuffix("_figure").removesuffix("_data")
+        module = self._MODULES.get(stem)
+        if module is None:
+            return None
+        try:
+            return getattr(importlib.import_module(f"orbitledger.figures.{module}"), name, None)
+        except ImportError:
+            return None
+
+
 def _figures() -> list[CaseFigure]:
-    from orbitledger import figures as f
+    f = _Builders()
 
     out: list[CaseFigure] = []
     orbit_plane = getattr(f, "orbit_plane_figure", None)
@@ -172,7 +210,7 @@ def _figures() -> list[CaseFigure]:
                 lambda c, _s: f.orbit_plane_data(c.elements(), body=c.body_constants()),
             )
         )
-    if hasattr(f, "inertial_figure"):
+    if f.inertial_figure is not None:
         out.append(
             CaseFigure(
                 "inertial view",
@@ -184,7 +222,7 @@ def _figures() -> list[CaseFigure]:
                 ),
             )
         )
-    if hasattr(f, "ground_track_figure"):
+    if f.ground_track_figure is not None:
         out.append(
             CaseFigure(
                 "ground track",
@@ -220,10 +258,20 @@ def case_figures(case: Any, *, theme: str = "light") -> dict[str, Any]:
 
 def overlay_figures(cases: Sequence[Any], labels: Sequence[str], *, theme: str = "light") -> list:
     """The figures of a trade: every candidate drawn in the same plot, one colour each."""
-    from orbitledger import figures as f
+    f = _Builders()
 
     out = []
     body = cases[0].body_constants()
+    if f.orbit_plane_figure is not None:
+        out.append(
+            f.orbit_plane_figure(
+                [c.elements() for c in cases],
+                labels=list(labels),
+                body=body,
+                theme=theme,
+                title="Candidates' orbit planes",
+            )
+        )
     out.append(
         f.inertial_figure(
             [_one_orbit(c) for c in cases],

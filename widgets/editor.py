@@ -30,6 +30,7 @@ from orbitledger import analysis
 from orbitledger.case import CaseError, CaseFileChanged
 
 from .background import BackgroundJob, Progress
+from .casefigures import prime
 from .debounce import Debouncer
 from .fields import BoolField, ChoiceField, Field, NumberField, TextField, VectorField
 from .history import History
@@ -54,6 +55,18 @@ def editor_figures(theme: str = "light") -> list[tuple[str, Callable, Callable]]
     from .casefigures import CASE_FIGURES
 
     return [(f.name, lambda case, f=f: f.build(case, theme), f.data) for f in CASE_FIGURES()]
+
+
+def _spaced(box: w.Box) -> w.Box:
+    box.add_class("ol-spaced")
+    return box
+
+
+def _case_warnings(case: Any) -> list[str]:
+    try:
+        return [str(note) for note in case.warnings()]
+    except (ValueError, ImportError):  # the kernel's cautions are not there yet
+        return []
 
 
 def _error_path(err: Exception) -> str | None:
@@ -85,6 +98,7 @@ class CaseEditor(w.VBox):
         theme: str = "light",
         debounce_s: float = 0.35,
         figures: list[tuple[str, Callable, Callable | None]] | None = None,
+        window_results: bool = True,
     ) -> None:
         super().__init__()
         load_bokehjs()
@@ -95,6 +109,8 @@ class CaseEditor(w.VBox):
         self._case = case
         self._history: History[Any] = History(case)
         self._debounce = Debouncer(debounce_s)
+        self.window_results = window_results
+        self._generation = 0
         self._pending: Any = None  # a valid case waiting on the changed-on-disk question
         self._results: dict[str, Any] = {}
         self._slow_results: dict[str, Any] = {}
@@ -193,6 +209,7 @@ class CaseEditor(w.VBox):
 
     def _set_case(self, case: Any, *, clear_errors: bool, source: Any = None) -> None:
         self._case = case
+        self._generation += 1
         t0 = time.perf_counter()
         self._refresh_fields(clear_errors=clear_errors, source=source)
         self.timings = {"fields_s": time.perf_counter() - t0}
@@ -205,35 +222,53 @@ class CaseEditor(w.VBox):
         except ValueError as exc:  # a valid case the kernel cannot summarise (shown, not lost)
             self._results = {}
             self.results_panel.show_error(f"results unavailable: {exc}")
+        if self._figures:
+            prime(self._case)  # the figures' kernel work: ephemeris, ground track
         t1 = time.perf_counter()
         self._slow_results = {}
         slow = [g for g in analysis.ALL_GROUPS if g not in analysis.FAST_GROUPS]
-        self.results_panel.show(self._results, "window results on the way" if slow else "")
+        pending = "window results on the way\u2026" if slow and self.window_results else ""
+        self.results_panel.show(self._results, pending)
+        self._warnings.value = html.escape(" ".join(_case_warnings(self._case)))
         t2 = time.perf_counter()
-        build = sync = 0.0
+        data = send = 0.0
         for figure in self._figures:
             figure.update(self._case)
-            build += figure.timings["build_s"]
-            sync += figure.timings["sync_s"]
+            data += figure.timings["build_s"]
+            send += figure.timings["sync_s"]
         self.timings.update(
-            kernel_s=t1 - t0, results_panel_s=t2 - t1, figure_build_s=build, figure_sync_s=sync
+            kernel_s=t1 - t0,
+            figure_data_s=data,
+            widget_s=self.timings.get("fields_s", 0.0) + (t2 - t1) + send,
         )
-        if slow:
-            generation = self._history_marker()
-            self._slow_job.start(lambda progress: self._slow_groups(slow, progress, generation))
+        if slow and self.window_results:
+            self.run_window_results()
+
+    def run_window_results(self) -> None:
+        """Compute the results over the analysis window (eclipses, contacts, lifetime...) in
+        the background; they join the results panel when done. Each edit does this itself
+        unless the editor was made with ``window_results=False``."""
+        self._slow_job.start()
+
+    def _window_job(self, progress: Progress) -> dict[str, Any]:
+        slow = [g for g in analysis.ALL_GROUPS if g not in analysis.FAST_GROUPS]
+        return self._slow_groups(slow, progress, self._history_marker())
 
     def _history_marker(self) -> int:
-        return id(self._case)
+        return self._generation
 
     def _slow_groups(self, groups: list[str], progress: Progress, marker: int) -> dict[str, Any]:
-        case, out = self._case, {}
+        case, out, failed = self._case, {}, []
         for k, group in enumerate(groups):
             progress(k / len(groups), f"{group}\u2026")
-            out.update(analysis.case_results(case, groups=[group]))
+            try:
+                out.update(analysis.case_results(case, groups=[group]))
+            except ValueError as exc:  # one group that does not apply does not stop the rest
+                failed.append(f"{group}: {exc}")
         progress(1.0)
         if self._history_marker() == marker:
             self._slow_results = out
-            self.results_panel.show(self.results)
+            self.results_panel.show(self.results, " ".join(failed))
         return out
 
     # -- building the form --------------------------------------------------------------------
@@ -253,8 +288,8 @@ class CaseEditor(w.VBox):
         brand = w.HTML('<span class="ol-brand">orbitledger \u00b7 case editor</span>')
         names = w.VBox(
             [
-                w.HBox([brand, self._title], layout=w.Layout(gap="1em")),
-                w.HBox([self._path, self._state], layout=w.Layout(gap="1em")),
+                _spaced(w.HBox([brand, self._title])),
+                _spaced(w.HBox([self._path, self._state])),
             ],
             layout=w.Layout(flex="1 1 auto"),
         )
@@ -308,11 +343,16 @@ class CaseEditor(w.VBox):
             boxes[key] = (title, box)
         self._section_titles = {key: title for key, title, _ in SECTIONS}
         self.results_panel = ResultsPanel()
+        self._warnings = w.HTML("")
+        self._warnings.add_class("ol-warn")
         self.results_panel.widget.layout.flex = "1 1 26em"
         self.stations = StationTable([], self._propose_list)
         self.burns = BurnTable([], self._propose_list)
-        self._slow_job = BackgroundJob("window results", describe=lambda r: f"{len(r)} results")
-        self._slow_job.run_button.layout.display = "none"
+        self._slow_job = BackgroundJob(
+            "window results", self._window_job, describe=lambda r: f"{len(r)} window results"
+        )
+        if self.window_results:
+            self._slow_job.run_button.layout.display = "none"
         self._figures = [
             LiveFigure(name, build, self._case, data) for name, build, data in figure_builders
         ]
@@ -333,6 +373,7 @@ class CaseEditor(w.VBox):
             style_sheet(),
             header,
             self._conflict,
+            self._warnings,
             grid,
             self.stations.widget,
             self.burns.widget,

@@ -142,6 +142,7 @@ class LiveFigure:
         self.note = w.HTML("")
         self.note.add_class("ol-note")
         self.model: Model | None = None
+        self._sources: dict[str, ColumnDataSource] = {}
         self.view: Any = None
         self._BokehModel = BokehModel
         self.timings = {"build_s": 0.0, "sync_s": 0.0}
@@ -168,15 +169,17 @@ class LiveFigure:
         self.note.value = ""
         if self.model is None or not self._hold(lambda: sync_model(self.model, fresh)):
             self.model = fresh
+            # Looked up once per model: a model walk costs more than the update itself.
+            self._sources = {s.name: s for s in fresh.select({"type": ColumnDataSource}) if s.name}
             self.view = self._BokehModel(fresh)
             self.widget.children = [self.view, self.note]
         self.timings = {"build_s": t1 - t0, "sync_s": time.perf_counter() - t1}
 
     def _update_sources(self, columns: dict[str, dict[str, Any]]) -> bool:
         assert self.model is not None
-        found = {s.name: s for s in self.model.select(type=ColumnDataSource) if s.name}
-        if any(name not in found for name in columns):
-            return False  # structure changed: rebuild
+        found = self._sources
+        if set(columns) != set(found):
+            return False  # structure changed (a station more or less): rebuild
 
         def apply() -> bool:
             for name, data in columns.items():

@@ -37,6 +37,7 @@ CSS = """
   margin-bottom: 6px;
   align-items: center;
 }
+.ol-spaced > * { margin-right: 1em; }
 .ol-brand { font-weight: 600; letter-spacing: 0.02em; color: var(--ol-accent); }
 .ol-title { font-weight: 600; font-size: var(--jp-ui-font-size2, 15px); }
 .ol-path, .ol-status { color: var(--ol-muted); font-family: var(--jp-code-font-family, monospace);
@@ -68,6 +69,8 @@ CSS = """
   white-space: normal; line-height: 1.25; }
 .ol-invalid input { border-color: var(--jp-error-color1, #d32f2f) !important;
   background: color-mix(in srgb, var(--jp-error-color1, #d32f2f) 8%, transparent) !important; }
+.ol-warn { color: var(--jp-warn-color0, #b35c00); font-size: var(--jp-ui-font-size1, 13px);
+  white-space: normal; }
 .ol-note { color: var(--ol-muted); font-size: var(--jp-ui-font-size0, 11px); white-space: normal; }
 .ol-conflict {
   border: 1px solid var(--jp-warn-color1, #f57c00);
