@@ -123,8 +123,11 @@ def inertial_data(
         node = np.cross([0.0, 0.0, 1.0], h)
         length = float(np.max(np.linalg.norm(r, axis=1)))
         if np.linalg.norm(node) > 1e-9 * np.linalg.norm(h):
-            node = node / np.linalg.norm(node) * length
-            nodes = np.array([-node, node])
+            # From the surface out to the orbit on both sides (inside the body it is unseen);
+            # a NaN row parts the ascending half from the descending one.
+            unit = node / np.linalg.norm(node)
+            reach = np.linspace(radius, max(length, radius), 16)[:, None]
+            nodes = np.vstack([unit * reach, np.full((1, 3), np.nan), -unit * reach])
         else:
             nodes = np.full((2, 3), np.nan)
         data[f"nodes-{k}"] = _polyline(nodes, azimuth_deg, elevation_deg, radius)
@@ -161,7 +164,8 @@ def reproject(fig, azimuth_deg: float, elevation_deg: float) -> None:
     """Turn a live inertial view to (azimuth, elevation), deg, in place (Python side of
     ``PROJECT_JS``): recomputes u, v and the hidden split of every line from its x, y, z."""
     sources = sources_of(fig)
-    radius = float(sources["view"].data["radius_km"][0])
+    limb = sources["limb"].data
+    radius = float(np.hypot(limb["u_km"][0], limb["v_km"][0]))
     for name, src in sources.items():
         if "x_km" not in src.data:
             continue
@@ -173,9 +177,12 @@ def reproject(fig, azimuth_deg: float, elevation_deg: float) -> None:
         else:
             new.update({"u_km": u, "v_km": v})
         src.data = new
-    sources["view"].data = dict(
-        sources["view"].data, azimuth_deg=[float(azimuth_deg)], elevation_deg=[float(elevation_deg)]
-    )
+    if "view" in sources:  # present when the figure carries its sliders
+        sources["view"].data = dict(
+            sources["view"].data,
+            azimuth_deg=[float(azimuth_deg)],
+            elevation_deg=[float(elevation_deg)],
+        )
 
 
 # The browser twin of ``project`` and ``_split_hidden``: the same formulas, for the sliders of a
