@@ -1,8 +1,7 @@
 """Command-line verbs for manoeuvre design: ``budget`` (a case's delta-v budget) and
 ``transfer`` (quick what-ifs: hohmann, bielliptic, plane-change, phasing, lambert).
 
-``budget_for_case`` and ``burn_plan_for_case`` are the one place where a case's burn plan and
-budget section become kernel inputs; the figures, widgets and records call them too.
+The case-to-kernel work of ``budget`` lives in ``orbitledger.analysis.manoeuvres``.
 """
 
 from __future__ import annotations
@@ -10,229 +9,12 @@ from __future__ import annotations
 import argparse
 import json
 import math
-from dataclasses import dataclass
 from typing import Any
 
-import numpy as np
-
+from ..analysis.manoeuvres import budget_data, budget_for_case, json_ready
 from ..kernel.errors import InputError
 
-__all__ = [
-    "BudgetReport",
-    "budget_for_case",
-    "burn_plan_for_case",
-    "register",
-]
-
-_MISSING = InputError.MISSING  # type: ignore[attr-defined]
-
-
-def burn_plan_for_case(case) -> tuple:
-    """The case's burn plan flown from its epoch state: a tuple of kernel ``BurnStep``."""
-    from ..case.plan import AtApsis, AtEpoch
-    from ..case.utc import utc_seconds_between
-    from ..kernel.burns import BurnSpec, apply_burn_plan
-
-    body = case.body_constants()
-    specs = []
-    for burn in case.burns:
-        at = burn.at
-        if isinstance(at, AtEpoch):
-            kw: dict[str, Any] = {
-                "at": "epoch",
-                "t_s": utc_seconds_between(case.epoch_utc, at.epoch_utc),
-            }
-        elif isinstance(at, AtApsis):
-            kw = {"at": at.apsis}
-        else:
-            kw = {"at": at.node}
-        if burn.dv_rtn_km_s is not None:
-            kw["dv_rtn_km_s"] = tuple(float(x) for x in burn.dv_rtn_km_s)
-        elif burn.transfer.kind == "circular":
-            kw["circular_radius_km"] = body.radius_km + float(burn.transfer.altitude_km)
-        else:
-            kw["i_deg"] = float(burn.transfer.i_deg)
-        specs.append(BurnSpec(name=burn.name, **kw))
-    r0, v0 = case.state()
-    return apply_burn_plan(r0, v0, specs, body.mu_km3_s2)
-
-
-@dataclass(frozen=True)
-class BudgetReport:
-    """A case's budget: the kernel ``DeltaVBudget``, the burn steps, the disposal plan (or
-    None), the operational elements the drag lines used, and the assumptions."""
-
-    budget: Any
-    steps: tuple
-    disposal: Any
-    operational_elements: Any
-    assumptions: dict[str, str]
-
-
-def budget_for_case(
-    case,
-    *,
-    mission_years: float | None = None,
-    margin_percent: float | None = None,
-    lifetime_limit_years: float | None = None,
-) -> BudgetReport:
-    """Build the delta-v budget of a case (its ``budget`` section; keywords override it or stand
-    in for a missing one). Lines in flight order: fixed allowances, one line per burn of the
-    plan, station-keeping (drag make-up x mission years), per-year allowances x mission years,
-    disposal. Refused without the spacecraft's mass and Isp."""
-    from ..kernel.atmosphere import DENSITY_MODEL_NAME
-    from ..kernel.budget import (
-        BudgetItem,
-        delta_v_budget,
-        disposal_perigee_lowering,
-        drag_makeup_dv_km_s_per_year,
-    )
-    from ..kernel.forces import ballistic_coefficient_kg_m2
-
-    sc = case.spacecraft
-    if sc is None:
-        raise InputError(
-            "spacecraft", _MISSING, "the budget needs the spacecraft's mass_kg and isp_s"
-        )
-    if sc.isp_s is None:
-        raise InputError("spacecraft.isp_s", _MISSING, "the budget needs the propulsion's Isp")
-    section = case.budget
-    years = (
-        mission_years if mission_years is not None else (section.mission_years if section else None)
-    )
-    if years is None:
-        raise InputError(
-            "budget.mission_years",
-            _MISSING,
-            "the case has no budget section: add one or pass --mission-years",
-        )
-    if not (math.isfinite(years) and years > 0.0):
-        raise InputError("budget.mission_years", years, "must be > 0 years")
-    margin = (
-        margin_percent
-        if margin_percent is not None
-        else (section.margin_percent if section else 0.0)
-    )
-    allowances = list(section.allowances) if section else []
-    station_keeping = section.station_keeping if section else True
-    limit = lifetime_limit_years
-    reentry_km = 120.0
-    if section and section.disposal:
-        limit = limit if limit is not None else section.disposal.lifetime_limit_years
-        reentry_km = section.disposal.reentry_altitude_km
-    body = case.body_constants()
-    activity = case.force_model.solar_activity
-    b = float(ballistic_coefficient_kg_m2(sc.mass_kg, sc.drag_area_m2, sc.drag_coefficient))
-
-    steps = burn_plan_for_case(case)
-    operational = steps[-1].elements_after if steps else case.elements()
-    items: list[BudgetItem] = []
-    for a in allowances:
-        if not a.per_year:
-            items.append(BudgetItem(a.name, a.dv_km_s, a.margin, "allowance as given"))
-    for burn in case.burns:
-        dv = sum(
-            s.dv_magnitude_km_s
-            for s in steps
-            if s.name == burn.name or s.name.startswith(burn.name + " (")
-        )
-        items.append(
-            BudgetItem(burn.name, dv, True, "burn plan, impulsive, two-body between burns")
-        )
-    if station_keeping:
-        per_year = drag_makeup_dv_km_s_per_year(operational, b, activity, body)
-        items.append(
-            BudgetItem(
-                "station keeping (drag make-up)",
-                per_year * years,
-                True,
-                f"{per_year * 1000.0:.4g} m/s per year x {years:g} years, {activity} solar activity",
-            )
-        )
-    for a in allowances:
-        if a.per_year:
-            items.append(
-                BudgetItem(
-                    a.name,
-                    a.dv_km_s * years,
-                    a.margin,
-                    f"{a.dv_km_s * 1000.0:g} m/s per year x {years:g} years",
-                )
-            )
-    disposal = None
-    if limit is not None:
-        disposal = disposal_perigee_lowering(operational, limit, b, activity, reentry_km, body)
-        items.append(
-            BudgetItem(
-                "disposal (perigee lowering)",
-                disposal.dv_km_s,
-                True,
-                f"perigee to {disposal.perigee_altitude_km:.1f} km: lifetime "
-                f"{disposal.lifetime_after_years:.2f} y <= {limit:g} y",
-            )
-        )
-    budget = delta_v_budget(
-        items,
-        isp_s=sc.isp_s,
-        initial_mass_kg=sc.mass_kg,
-        margin_percent=margin,
-        propellant_available_kg=sc.propellant_mass_kg,
-    )
-    assumptions = {
-        "propulsion": f"Isp {sc.isp_s:g} s, g0 9.80665 m/s^2, wet mass {sc.mass_kg:g} kg",
-        "margin_policy": f"{margin:g} % added to computed lines; allowances only where marked",
-        "drag": f"B = m/(Cd A) = {b:.4g} kg/m^2; {DENSITY_MODEL_NAME}",
-        "solar_activity": f"{activity}, held constant",
-        "operational_orbit": "osculating elements after the last burn, taken as mean",
-    }
-    return BudgetReport(budget, steps, disposal, operational, assumptions)
-
-
-def _num(x: Any) -> Any:
-    if isinstance(x, np.ndarray):
-        return _num(x.tolist())
-    if isinstance(x, (np.floating, np.integer)):
-        x = x.item()
-    if isinstance(x, float) and not math.isfinite(x):
-        return None
-    if isinstance(x, (list, tuple)):
-        return [_num(v) for v in x]
-    if isinstance(x, dict):
-        return {str(k): _num(v) for k, v in x.items()}
-    return x
-
-
-def budget_data(report: BudgetReport, *, file: str | None = None) -> dict[str, Any]:
-    """The budget report as JSON-ready data."""
-    out = report.budget.as_dict()
-    out["file"] = file
-    out["burns"] = [
-        {
-            "name": s.name,
-            "t_s": s.t_s,
-            "dv_rtn_km_s": s.dv_rtn_km_s,
-            "dv_km_s": s.dv_magnitude_km_s,
-            "elements_after": {
-                k: getattr(s.elements_after, k)
-                for k in ("a_km", "e", "i_deg", "raan_deg", "argp_deg", "nu_deg")
-            },
-        }
-        for s in report.steps
-    ]
-    if report.disposal is not None:
-        d = report.disposal
-        out["disposal"] = {
-            "dv_km_s": d.dv_km_s,
-            "perigee_altitude_km": d.perigee_altitude_km,
-            "apogee_altitude_km": d.apogee_altitude_km,
-            "lifetime_before_years": d.lifetime_before_years,
-            "lifetime_after_years": d.lifetime_after_years,
-            "lifetime_limit_years": d.lifetime_limit_years,
-            "assumptions": dict(d.assumptions),
-            "caution": d.caution,
-        }
-    out["assumptions"] = report.assumptions
-    return _num(out)
+__all__ = ["budget_table", "register"]
 
 
 def budget_table(data: dict[str, Any]) -> str:
@@ -291,7 +73,7 @@ def _body(name: str):
 
 
 def _result_dict(res: Any) -> dict[str, Any]:
-    return {k: _num(res[k]) for k in res.keys()}
+    return {k: json_ready(res[k]) for k in res.keys()}
 
 
 _OPTION_OF = {
@@ -370,13 +152,13 @@ def _transfer(args: argparse.Namespace) -> int:
         if bool(sol.infeasible):
             lambert(*given)  # raises InputError naming the minimum time of flight
         res = {
-            "v1_km_s": _num(sol.v1_km_s),
-            "v2_km_s": _num(sol.v2_km_s),
-            "a_km": _num(sol.a_km),
+            "v1_km_s": json_ready(sol.v1_km_s),
+            "v2_km_s": json_ready(sol.v2_km_s),
+            "a_km": json_ready(sol.a_km),
             "transfer_angle_deg": math.degrees(float(sol.transfer_angle_rad)),
             "plane_ill_defined": bool(sol.plane_ill_defined),
         }
-    res = {k: _num(v) for k, v in res.items()}
+    res = {k: json_ready(v) for k, v in res.items()}
     if args.json:
         print(json.dumps({"transfer": kind, "body": body.name, **res}, indent=2, allow_nan=False))
         return 0
