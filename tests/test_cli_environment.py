@@ -33,7 +33,10 @@ def _run(capsys, *argv) -> tuple[int, str, str]:
     return code, out.out, out.err
 
 
-def test_passes_json_and_astropy_elevation_at_max(tmp_path: Path, capsys) -> None:
+def test_passes_json_and_astropy_elevation_at_max(tmp_path: Path, capsys, monkeypatch) -> None:
+    from orbitledger.kernel import timescales
+
+    monkeypatch.setattr(timescales._WarnOnce, "issued", False)  # a fresh process, as the CLI
     path = _case(tmp_path, window={"start_utc": None, "duration_s": 21600.0, "step_s": 1.0})
     code, out, err = _run(capsys, "passes", str(path), "--json")
     assert code == 0

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable, Mapping
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Any
 
 import numpy as np
@@ -22,7 +22,12 @@ from .constants import EARTH, Body
 from .elements import Elements, elements_to_state
 from .errors import InputError
 from .frames import gcrf_to_itrf_state
-from .j2 import j2_secular_rates_rad_s, mean_element_states, propagate_j2_mean
+from .j2 import (
+    j2_secular_rates_rad_s,
+    mean_element_states,
+    mean_semi_major_axis_km,
+    propagate_j2_mean,
+)
 from .timescales import EpochLike, TimeScales, time_scales
 
 __all__ = ["PROPAGATORS", "EarthOrientation", "Trajectory", "trajectory"]
@@ -134,15 +139,17 @@ def trajectory(
 
         return Trajectory(start, state_at, 2 * math.pi / n, propagator, eop, body)
     if propagator == "j2-mean":
-        m_rate = float(
-            j2_secular_rates_rad_s(a, e, math.radians(float(np.asarray(elements.i_deg))), body)[2]
-        )
+        a_mean = mean_semi_major_axis_km(elements, body)
+        mean = replace(elements, a_km=a_mean)
+        i_rad = math.radians(float(np.asarray(elements.i_deg)))
+        m_rate = float(j2_secular_rates_rad_s(a_mean, e, i_rad, body)[2])
 
         def state_at(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-            return propagate_j2_mean(elements, offset0 + t, body)
+            return propagate_j2_mean(mean, offset0 + t, body)
 
         notes = (
-            "J2 secular drift of RAAN, argument of perigee and mean anomaly; short-period terms omitted",
+            "J2 secular drift of RAAN, argument of perigee and mean anomaly; short-period terms "
+            f"omitted; mean semi-major axis {a_mean:.3f} km from the osculating {a:.3f} km",
         )
         return Trajectory(start, state_at, 2 * math.pi / m_rate, propagator, eop, body, notes=notes)
     return _numerical(
