@@ -99,13 +99,13 @@ def time_to_next_s(
     if event not in _EVENTS:
         raise InputError("at", event, f"must be one of {', '.join(_EVENTS)}")
     el = state_to_elements(r_km, v_km_s, mu_km3_s2)
-    a, e = float(el.a_km), float(el.e)
-    nu = math.radians(float(el.nu_deg))
+    a, e = float(np.asarray(el.a_km)), float(np.asarray(el.e))
+    nu = math.radians(float(np.asarray(el.nu_deg)))
     if event in ("ascending", "descending"):
-        if float(el.i_deg) in (0.0, 180.0):
+        if float(np.asarray(el.i_deg)) in (0.0, 180.0):
             raise InputError("at.node", event, "an equatorial orbit has no nodes")
         u_target = 0.0 if event == "ascending" else math.pi
-        nu_target = u_target - math.radians(float(el.argp_deg))
+        nu_target = u_target - math.radians(float(np.asarray(el.argp_deg)))
     else:
         nu_target = 0.0 if event == "periapsis" else math.pi
     if e >= 1.0:

@@ -62,8 +62,11 @@ class HohmannTransfer(NamedTuple):
     dv_total_km_s: Any
     tof_s: Any
 
-    __getitem__ = _getitem  # type: ignore[assignment]
-    keys = _keys
+    def __getitem__(self, key: Any) -> Any:  # type: ignore[override]
+        return _getitem(self, key)
+
+    def keys(self) -> tuple[str, ...]:
+        return _keys(self)
 
 
 class BiellipticTransfer(NamedTuple):
@@ -75,8 +78,11 @@ class BiellipticTransfer(NamedTuple):
     dv_total_km_s: Any
     tof_s: Any
 
-    __getitem__ = _getitem  # type: ignore[assignment]
-    keys = _keys
+    def __getitem__(self, key: Any) -> Any:  # type: ignore[override]
+        return _getitem(self, key)
+
+    def keys(self) -> tuple[str, ...]:
+        return _keys(self)
 
 
 class CombinedPlaneChange(NamedTuple):
@@ -89,8 +95,11 @@ class CombinedPlaneChange(NamedTuple):
     di1_deg: Any
     di2_deg: Any
 
-    __getitem__ = _getitem  # type: ignore[assignment]
-    keys = _keys
+    def __getitem__(self, key: Any) -> Any:  # type: ignore[override]
+        return _getitem(self, key)
+
+    def keys(self) -> tuple[str, ...]:
+        return _keys(self)
 
 
 class PhasingManoeuvre(NamedTuple):
@@ -103,8 +112,11 @@ class PhasingManoeuvre(NamedTuple):
     a_phasing_km: Any
     phase_angle_deg: Any
 
-    __getitem__ = _getitem  # type: ignore[assignment]
-    keys = _keys
+    def __getitem__(self, key: Any) -> Any:  # type: ignore[override]
+        return _getitem(self, key)
+
+    def keys(self) -> tuple[str, ...]:
+        return _keys(self)
 
 
 def _out(x: np.ndarray) -> Any:
