@@ -239,7 +239,8 @@ def find_eclipses(
     shadow = iv.channel == 0
     starts, ends = iv.start_s[shadow], iv.end_s[shadow]
     u_starts, u_ends = iv.start_s[~shadow], iv.end_s[~shadow]
-    stamps = utc_iso(*_utc(traj, np.concatenate([starts, ends])), decimals=1)
+    utc1, utc2 = _utc(traj, np.concatenate([starts, ends]))
+    stamps = utc_iso(utc1, utc2, decimals=1)
     eclipses = []
     for j in range(starts.size):  # one step per eclipse, not per epoch
         inside = (u_starts >= starts[j] - tolerance_s) & (u_ends <= ends[j] + tolerance_s)

@@ -175,7 +175,8 @@ def propagate_j2_mean(
     if a.ndim or e.ndim:
         raise InputError("elements", elements, "must be one element set (scalars)")
     rates = j2_secular_rates_rad_s(a, e, math.radians(float(np.asarray(elements.i_deg))), body)
-    return mean_element_states(elements, dt_s, *(float(x) for x in rates), body.mu_km3_s2)
+    raan_rate, argp_rate, m_rate = (float(x) for x in rates)
+    return mean_element_states(elements, dt_s, raan_rate, argp_rate, m_rate, body.mu_km3_s2)
 
 
 def mean_semi_major_axis_km(elements: Elements, body: Body = EARTH) -> float:

@@ -220,7 +220,8 @@ def station_passes(
     ch2 = np.concatenate([iv.channel, iv.channel])
     az = _azimuth_deg(r_edges, sites[ch2], enu[ch2])
     m = left.size
-    stamps = utc_iso(*_utc(traj, np.concatenate([left, t_max, right])), decimals=1)
+    utc1, utc2 = _utc(traj, np.concatenate([left, t_max, right]))
+    stamps = utc_iso(utc1, utc2, decimals=1)
     passes = [
         Pass(
             station=stations[int(iv.channel[j])].name,

@@ -24,11 +24,11 @@ from .errors import InputError
 from .frames import gcrf_to_itrf_state
 from .j2 import (
     j2_secular_rates_rad_s,
-    mean_element_states,
     mean_semi_major_axis_km,
     propagate_j2_mean,
 )
 from .timescales import EpochLike, TimeScales, time_scales
+from .twobody import propagate_two_body
 
 __all__ = ["PROPAGATORS", "EarthOrientation", "Trajectory", "trajectory"]
 
@@ -133,9 +133,10 @@ def trajectory(
     offset0 = _seconds_between(start, epoch)
     n = math.sqrt(body.mu_km3_s2 / a**3)
     if propagator == "two-body":
+        r0, v0 = elements_to_state(elements, body.mu_km3_s2)
 
         def state_at(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-            return mean_element_states(elements, offset0 + t, 0.0, 0.0, n, body.mu_km3_s2)
+            return propagate_two_body(r0, v0, offset0 + np.asarray(t, dtype=float), body.mu_km3_s2)
 
         return Trajectory(start, state_at, 2 * math.pi / n, propagator, eop, body)
     if propagator == "j2-mean":

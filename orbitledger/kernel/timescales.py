@@ -136,8 +136,9 @@ def parse_utc(epoch_utc: EpochLike, field: str = "epoch_utc") -> tuple[np.ndarra
     if isinstance(epoch_utc, TimeScales):
         return epoch_utc.utc1, epoch_utc.utc2
     if _is_jd_pair(epoch_utc):
-        jd1, jd2 = (np.asarray(p, dtype=float) for p in epoch_utc)
-        return np.broadcast_arrays(jd1, jd2)
+        pair: tuple[Any, Any] = epoch_utc  # type: ignore[assignment]
+        jd1, jd2 = np.broadcast_arrays(np.asarray(pair[0], float), np.asarray(pair[1], float))
+        return jd1, jd2
     if isinstance(epoch_utc, (str, _dt.datetime, np.datetime64)):
         parts = [_calendar_fields(epoch_utc, field)]
         shape: tuple[int, ...] = ()
@@ -215,8 +216,10 @@ def time_scales(
         tt1, tt2 = erfa.taitt(tai1, tai2)
         ut11, ut12 = erfa.utcut1(utc1, utc2, dut1_s)
     extrapolated = _check_extrapolation(np.asarray(utc1), np.asarray(utc2))
-    arrays = [np.asarray(a, dtype=float) for a in (utc1, utc2, tai1, tai2, tt1, tt2, ut11, ut12)]
-    return TimeScales(*arrays, dut1_s=float(dut1_s), utc_tai_extrapolated=extrapolated)
+    u1, u2, a1, a2, t1, t2, b1, b2 = (
+        np.asarray(x, dtype=float) for x in (utc1, utc2, tai1, tai2, tt1, tt2, ut11, ut12)
+    )
+    return TimeScales(u1, u2, a1, a2, t1, t2, b1, b2, float(dut1_s), extrapolated)
 
 
 def utc_iso(utc1: Any, utc2: Any, decimals: int = 3) -> np.ndarray | str:
