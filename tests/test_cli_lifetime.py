@@ -1,7 +1,7 @@
 """The ``lifetime`` verb: the case's drag inputs reach the kernel, results and refusals as specified.
 
 Outside references: the ballistic coefficient m / (Cd A) of the case's spacecraft (definition,
-Vallado 4th ed., Sec. 8.6.2; arithmetic here), the rule-of-thumb lifetime band of a small
+Montenbruck & Gill, Satellite Orbits, Sec. 3.5; arithmetic here), the rule-of-thumb lifetime band of a small
 satellite near 540 km (one to a few decades at moderate activity; common practice, ESA/NASA
 debris-mitigation guidance), and the kernel's own ``lifetime_years`` for the same inputs.
 """

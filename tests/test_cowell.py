@@ -39,8 +39,8 @@ def test_without_perturbations_agrees_with_two_body_propagation_to_1_m_over_a_da
 
 
 def test_without_perturbations_keeps_energy_and_angular_momentum():
-    # Point-mass motion conserves the specific energy and angular momentum (Newton; Vallado
-    # 4th ed., Sec. 1.4): over a day at default tolerances (rtol 1e-10 per step) they drift
+    # Point-mass motion conserves the specific energy and angular momentum (Newton;
+    # common practice): over a day at default tolerances (rtol 1e-10 per step) they drift
     # by < 2e-9 relative, i.e. a millimetre-level position error.
     r0, v0 = _circular_state(500.0, 51.6)
     v0 = v0 * 1.01
@@ -53,7 +53,7 @@ def test_without_perturbations_keeps_energy_and_angular_momentum():
 
 def test_j2_only_keeps_the_energy_integral():
     # J2 is a static, axisymmetric potential: v^2/2 - mu/r + (mu J2 R^2 / (2 r^3))(3 sin^2 - 1)
-    # and the z component of angular momentum are constant (Vallado 4th ed., Sec. 8.6.1).
+    # and the z component of angular momentum are constant (common practice).
     r0, v0 = _circular_state(600.0, 63.0)
     res = propagate_cowell(r0, v0, np.linspace(0.0, 86_400.0, 25), force_model=ForceModel(2))
     rn = np.linalg.norm(res.r_km, axis=1)
@@ -138,7 +138,7 @@ def test_progress_is_reported_per_day_and_results_are_unchanged():
 
 def test_third_bodies_move_a_leo_orbit_by_metres_to_tens_of_metres_in_a_day():
     # Luni-solar perturbations displace a LEO satellite by of order 10-1000 m per day
-    # (Montenbruck & Gill, Satellite Orbits, Table 3.? / Fig. 3.1 chart; from memory).
+    # (Montenbruck & Gill, Satellite Orbits, Fig. 3.1 chart; from memory).
     r0, v0 = _circular_state(700.0, 98.0)
     epoch = (2461486.0, 0.0)
     t = [86_400.0]

@@ -60,8 +60,7 @@ def test_zonal_acceleration_is_the_gradient_of_the_zonal_potential(degree, r):
 def test_j2_closed_form_at_equator_and_pole():
     # Gradient of the J2 potential U = -(mu J2 R^2 / (2 r^3)) (3 sin^2 phi - 1), by hand:
     # at the equator a_r = -(3/2) J2 mu R^2 / r^4; over the pole a_r = +3 J2 mu R^2 / r^4
-    # (Vallado 4th ed., Sec. 8.6.1; Curtis, Orbital Mechanics for Engineering Students,
-    # Sec. on the J2 perturbation, p_r component (from memory)).
+    # (Montenbruck & Gill, Satellite Orbits, Sec. 3.2, specialised to n = 2).
     r = 7000.0
     k = J[2] * MU * RE**2 / r**4
     eq = zonal_acceleration_km_s2(np.array([0.0, r, 0.0]))

@@ -1,7 +1,7 @@
 """Numerical (Cowell) propagation: the equations of motion integrated directly in the GCRF.
 
 d(r, v)/dt = (v, a(t, r, v)) with the accelerations of ``orbitledger.kernel.forces`` (Cowell's
-method: Vallado 4th ed., Sec. 8.5; Montenbruck & Gill, Satellite Orbits (2000), Sec. 4.1),
+method: Montenbruck & Gill, Satellite Orbits (2000), Sec. 4.1),
 integrated by scipy's DOP853, the explicit Runge-Kutta 8(5,3) pair of Dormand & Prince with a
 7th-order dense output (Hairer, Norsett & Wanner, Solving ODEs I, 2nd ed., Sec. II.10).
 

@@ -60,7 +60,7 @@ def ballistic_coefficient_kg_m2(
 
 
 def two_body_acceleration_km_s2(r_km: ArrayLike, mu_km3_s2: float) -> np.ndarray:
-    """Point-mass gravity -mu r / |r|^3, km/s^2 (Newton; Vallado 4th ed., Sec. 1.3)."""
+    """Point-mass gravity -mu r / |r|^3, km/s^2 (Newton)."""
     r = np.asarray(r_km, dtype=float)
     r2 = (r * r).sum(axis=-1, keepdims=True)
     return (-mu_km3_s2 / (r2 * np.sqrt(r2))) * r
@@ -71,8 +71,8 @@ def zonal_acceleration_km_s2(r_km: ArrayLike, body: Body = EARTH, degree: int = 
 
     The gradient of the zonal part of the geopotential, with the sign convention
     U = (mu/r) [1 - sum_n Jn (R/r)^n Pn(z/r)] for the potential whose gradient is the
-    acceleration (Montenbruck & Gill, Satellite Orbits (2000), Sec. 3.2, with Cn0 = -Jn;
-    Vallado 4th ed., Sec. 8.6.1), written in Cartesian form, point-mass term excluded.
+    acceleration (Montenbruck & Gill, Satellite Orbits (2000), Sec. 3.2, with Cn0 = -Jn),
+    written in Cartesian form, point-mass term excluded.
     The tests check every degree against the gradient of that potential built from scipy's
     Legendre polynomials, and J2 against its closed form at the equator and the pole.
     """
@@ -155,8 +155,9 @@ def third_body_acceleration_km_s2(
     """Perturbing acceleration of a third body on a geocentric satellite, km/s^2.
 
     mu_b [ (s - r)/|s - r|^3 - s/|s|^3 ], s the body's geocentric position (Montenbruck &
-    Gill, Satellite Orbits (2000), Sec. 3.3.1, Eq. 3.37; equation number from memory). In double precision the difference loses under
-    1e-9 relative accuracy for an Earth satellite, far below the model's own error.
+    Gill, Satellite Orbits (2000), Sec. 3.3.1, Eq. 3.37; equation number from memory). In
+    double precision the difference loses under 1e-9 relative accuracy for an Earth
+    satellite, far below the model's own error.
     """
     r = np.asarray(r_km, dtype=float)
     s = np.asarray(r_body_km, dtype=float)
