@@ -27,7 +27,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from .errors import InputError
-from .kepler import hyperbolic_kepler_residual, solve_kepler
+from .kepler import hyperbolic_kepler_residual, solve_kepler, x_minus_sin_x
 
 __all__ = [
     "true_to_eccentric_anomaly",
@@ -87,7 +87,10 @@ def true_to_eccentric_anomaly(nu_rad: ArrayLike, e: ArrayLike) -> np.ndarray | f
     """
     ecc = _elliptic_e(e)
     nu = np.asarray(nu_rad, dtype=float)
-    E = np.arctan2(np.sqrt((1.0 - ecc) * (1.0 + ecc)) * np.sin(nu), ecc + np.cos(nu))
+    # e + cos nu = (e - 1) + 2 cos^2(nu/2): no cancellation near nu = pi when e -> 1.
+    E = np.arctan2(
+        np.sqrt((1.0 - ecc) * (1.0 + ecc)) * np.sin(nu), (ecc - 1.0) + 2.0 * np.cos(0.5 * nu) ** 2
+    )
     return _out(nu + wrap_pi(E - nu))
 
 
@@ -99,15 +102,22 @@ def eccentric_to_true_anomaly(E_rad: ArrayLike, e: ArrayLike) -> np.ndarray | fl
     """
     ecc = _elliptic_e(e)
     E = np.asarray(E_rad, dtype=float)
-    nu = np.arctan2(np.sqrt((1.0 - ecc) * (1.0 + ecc)) * np.sin(E), np.cos(E) - ecc)
+    # cos E - e = (1 - e) - 2 sin^2(E/2): no cancellation near E = 0 when e -> 1.
+    nu = np.arctan2(
+        np.sqrt((1.0 - ecc) * (1.0 + ecc)) * np.sin(E), (1.0 - ecc) - 2.0 * np.sin(0.5 * E) ** 2
+    )
     return _out(E + wrap_pi(nu - E))
 
 
 def eccentric_to_mean_anomaly(E_rad: ArrayLike, e: ArrayLike) -> np.ndarray | float:
-    """Mean anomaly M = E - e sin E (rad), Kepler's equation, 0 <= e < 1."""
+    """Mean anomaly M = E - e sin E (rad), Kepler's equation, 0 <= e < 1.
+
+    Formed as (1 - e) sin E + (E - sin E), with a series for E - sin E, so that near-parabolic
+    orbits keep relative accuracy in M near periapsis.
+    """
     ecc = _elliptic_e(e)
     E = np.asarray(E_rad, dtype=float)
-    return _out(E - ecc * np.sin(E))
+    return _out((1.0 - ecc) * np.sin(E) + x_minus_sin_x(E))
 
 
 def mean_to_eccentric_anomaly(M_rad: ArrayLike, e: ArrayLike) -> np.ndarray | float:
@@ -151,7 +161,13 @@ def hyperbolic_to_true_anomaly(H_rad: ArrayLike, e: ArrayLike) -> np.ndarray | f
     ecc = _hyperbolic_e(e)
     H = np.asarray(H_rad, dtype=float)
     with np.errstate(over="ignore"):
-        return _out(np.arctan2(np.sqrt((ecc - 1.0) * (ecc + 1.0)) * np.sinh(H), ecc - np.cosh(H)))
+        # e - cosh H = (e - 1) - 2 sinh^2(H/2): no cancellation near H = 0 when e -> 1.
+        return _out(
+            np.arctan2(
+                np.sqrt((ecc - 1.0) * (ecc + 1.0)) * np.sinh(H),
+                (ecc - 1.0) - 2.0 * np.sinh(0.5 * H) ** 2,
+            )
+        )
 
 
 def hyperbolic_to_mean_anomaly(H_rad: ArrayLike, e: ArrayLike) -> np.ndarray | float:

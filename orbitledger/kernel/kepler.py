@@ -196,6 +196,8 @@ def _elliptic(M: np.ndarray, e, sincos: bool = False):
             None if c_out is None else c_out[start:stop],
             workspace,
         )
+    if not sincos:  # the propagator takes e >= 0.99 by universal variables
+        _refine_near_parabolic(M, e, E)
     return E, s_out, c_out
 
 
@@ -336,17 +338,59 @@ def _markley_chunk(M, e, E, bufs, mask, s_out, c_out) -> None:
     c_out += d2
 
 
+def _x_minus_sin_or_sinh_x(x: np.ndarray, sign: float) -> np.ndarray:
+    """x - sin x (sign = -1) or sinh x - x (sign = +1) by the Taylor series, |x| < 2.
+
+    Sum of sign^k x^(2k+3) / (2k+3)!, Horner from the top term; truncation < 1e-19 |x|^3.
+    """
+    x2 = x * x
+    series = np.ones_like(x)
+    for k in range(12, 0, -1):
+        series = 1.0 + sign * series * x2 / ((2 * k + 2) * (2 * k + 3))
+    return series * x * x2 / 6.0
+
+
 def _sinh_minus_x(H: np.ndarray) -> np.ndarray:
-    """sinh H - H without cancellation: Taylor series for |H| < 2 (truncation < 1e-19 |H|^3)."""
+    """sinh H - H without cancellation: series for |H| < 2, direct beyond."""
     H = np.asarray(H, dtype=float)
-    h2 = H * H
-    series = np.ones_like(H)
-    for k in range(12, 0, -1):  # sum of H^(2k+3) / (2k+3)!, Horner from the top term
-        series = 1.0 + series * h2 / ((2 * k + 2) * (2 * k + 3))
-    series *= H * h2 / 6.0
     with np.errstate(over="ignore"):
         direct = np.sinh(H) - H
-    return np.where(np.abs(H) < 2.0, series, direct)
+    return np.where(np.abs(H) < 2.0, _x_minus_sin_or_sinh_x(H, 1.0), direct)
+
+
+def x_minus_sin_x(E: ArrayLike) -> np.ndarray:
+    """E - sin E without cancellation (rad): series for |E| < 2, direct beyond."""
+    E = np.asarray(E, dtype=float)
+    return np.where(np.abs(E) < 2.0, _x_minus_sin_or_sinh_x(E, -1.0), E - np.sin(E))
+
+
+def _refine_near_parabolic(M: np.ndarray, e, E: np.ndarray) -> None:
+    """Restore relative accuracy where e > 0.99 and |E| < 1 (in place).
+
+    There M = (1 - e) sin E + (E - sin E) is tiny and Markley's residual, formed as
+    E - e sin E - M, loses digits relative to M (not in absolute terms: the 1e-13 rad
+    target holds regardless). Two Newton steps with the residual and the derivative
+    f' = (1 - e) + 2 e sin^2(E/2) evaluated without cancellation make the result good to a
+    few ulp of E.
+    """
+    near = e > 0.99
+    if not np.any(near):
+        return
+    idx = np.arange(M.size) if np.ndim(e) == 0 else np.flatnonzero(near)
+    twopik = _TWO_PI * np.rint(M[idx] * _INV_TWO_PI)
+    Er = E[idx] - twopik
+    idx_small = np.abs(Er) < 1.0
+    if not idx_small.any():
+        return
+    idx, twopik, Er = idx[idx_small], twopik[idx_small], Er[idx_small]
+    ee = e if np.ndim(e) == 0 else e[idx]
+    m = M[idx] - twopik
+    for _ in range(2):
+        sE = np.sin(Er)
+        f0 = (1.0 - ee) * sE + x_minus_sin_x(Er) - m
+        f1 = (1.0 - ee) + 2.0 * ee * np.sin(0.5 * Er) ** 2
+        Er = Er - f0 / f1
+    E[idx] = Er + twopik
 
 
 def _hyperbolic(M: np.ndarray, e: np.ndarray, max_steps: int = 12) -> np.ndarray:
