@@ -164,3 +164,23 @@ def test_bad_input_is_one_line_and_exit_2(
     assert code == 2
     assert field in err and "Traceback" not in err
     assert len(err.strip().splitlines()) == 1
+
+
+def test_orbit_decaying_inside_the_window_is_reported_not_a_crash(tmp_path: Path, capsys) -> None:
+    # 160 km with drag at high solar activity re-enters within two days (the exponential
+    # atmosphere of kernel-propagation.md); the verbs stop at the decay and say when.
+    orbit = json.loads(EXAMPLE.read_text())["orbit"] | {"altitude_km": 160.0}
+    path = _case(
+        tmp_path,
+        orbit=orbit,
+        window={"start_utc": None, "duration_s": 3 * 86400.0, "step_s": 30.0},
+        force_model={"propagator": "numerical", "drag": True, "solar_activity": "high"},
+    )
+    code, out, _ = _run(capsys, "eclipses", str(path), "--json")
+    assert code == 0
+    data = json.loads(out)
+    decay = [note for note in data["model_notes"] if "re-entry" in note]
+    assert decay
+    decay_s = float(decay[0].split(" at ")[1].split(" s")[0])
+    assert 0.0 < decay_s < 3 * 86400.0
+    assert max(e["exit_s"] for e in data["eclipses"]) <= decay_s + 1.0
