@@ -6,6 +6,7 @@ import math
 
 import numpy as np
 import pytest
+from _circular_orbit import circular, plane_basis
 
 from orbitledger.kernel.constants import EARTH
 from orbitledger.kernel.eclipses import (
@@ -20,7 +21,6 @@ from orbitledger.kernel.eclipses import (
 )
 from orbitledger.kernel.errors import InputError
 from orbitledger.kernel.sun import sun_position_gcrf_km
-from tests._circular_orbit import circular, plane_basis
 
 pytestmark = pytest.mark.filterwarnings(
     "ignore::orbitledger.kernel.timescales.LeapSecondExtrapolationWarning"

@@ -6,10 +6,10 @@ import math
 
 import numpy as np
 import pytest
+from _circular_orbit import circular, plane_basis
 
 from orbitledger.kernel.constants import EARTH
 from orbitledger.kernel.groundtrack import antimeridian_crossings, ground_track
-from tests._circular_orbit import circular, plane_basis
 
 pytestmark = pytest.mark.filterwarnings(
     "ignore::orbitledger.kernel.timescales.LeapSecondExtrapolationWarning"

@@ -98,8 +98,9 @@ def test_no_sun_synchronous_orbit_far_out_is_refused() -> None:
 def test_j2_mean_propagation_without_j2_is_the_two_body_circle() -> None:
     # With J2 = 0 the rates vanish and the model must reduce to Kepler motion: compare with
     # the circle written out in closed form (tests/_circular_orbit.py), to 1 mm over a day.
+    from _circular_orbit import circular, plane_basis
+
     from orbitledger.kernel.j2 import propagate_j2_mean
-    from tests._circular_orbit import circular, plane_basis
 
     no_j2 = Body(name="Earth", mu_km3_s2=EARTH.mu_km3_s2, radius_km=EARTH.radius_km, j2=0.0)
     el = Elements(a_km=6918.137, e=0.0, i_deg=97.5, raan_deg=30.0, argp_deg=0.0, nu_deg=40.0)

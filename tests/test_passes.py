@@ -8,10 +8,10 @@ import warnings
 import erfa
 import numpy as np
 import pytest
+from _circular_orbit import circular, plane_basis
 
 from orbitledger.kernel.errors import InputError
 from orbitledger.kernel.passes import PassSearchStepWarning, Station, station_passes
-from tests._circular_orbit import circular, plane_basis
 
 pytestmark = pytest.mark.filterwarnings(
     "ignore::orbitledger.kernel.timescales.LeapSecondExtrapolationWarning"
