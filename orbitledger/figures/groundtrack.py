@@ -293,7 +293,7 @@ def ground_track_figure(
             ],
         )
     fig.add_layout(_attribution(pal), "below")
-    finish_legend(fig, pal, location="bottom_left")
+    finish_legend(fig, pal, outside="below")
     return fig
 
 

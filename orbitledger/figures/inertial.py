@@ -33,6 +33,7 @@ from .theme import add_hover, axis_label, finish_legend, new_figure, tooltip
 
 __all__ = [
     "PROJECT_JS",
+    "default_view",
     "inertial_data",
     "inertial_figure",
     "project",
@@ -96,11 +97,20 @@ def _checked_states(r_km: Any, v_km_s: Any, index: int) -> tuple[np.ndarray, np.
     return r, v
 
 
+def default_view(r_km: Any, v_km_s: Any) -> tuple[float, float]:
+    """A view that shows the orbit open: from its pole (the direction of h = r x v), tilted
+    30 deg towards the north so that the equator reads as an ellipse. (azimuth, elevation) deg."""
+    h = np.cross(np.asarray(r_km, dtype=float)[0], np.asarray(v_km_s, dtype=float)[0])
+    az = float(np.degrees(np.arctan2(h[1], h[0])))
+    el = float(np.degrees(np.arcsin(h[2] / np.linalg.norm(h))))
+    return round(az), round(float(np.clip(el + 30.0 if el < 60.0 else el - 30.0, -85.0, 85.0)))
+
+
 def inertial_data(
     orbits: Sequence[tuple[Any, Any]],
     *,
-    azimuth_deg: float = 30.0,
-    elevation_deg: float = 25.0,
+    azimuth_deg: float | None = None,
+    elevation_deg: float | None = None,
     body: Body = EARTH,
 ) -> FigureData:
     """Columns of every source of the inertial view, by source name.
@@ -111,6 +121,11 @@ def inertial_data(
     (|h_xy| < 1e-9 |h|) it is not drawn.
     """
     radius = body.radius_km
+    orbits = list(orbits)
+    if azimuth_deg is None or elevation_deg is None:
+        az0, el0 = default_view(*orbits[0]) if orbits else (30.0, 25.0)
+        azimuth_deg = az0 if azimuth_deg is None else azimuth_deg
+        elevation_deg = el0 if elevation_deg is None else elevation_deg
     data: FigureData = {}
     extent = radius
     for k, (r_km, v_km_s) in enumerate(orbits):
@@ -224,12 +239,12 @@ def inertial_figure(
     orbits: Sequence[tuple[Any, Any]],
     *,
     labels: Sequence[str] | None = None,
-    azimuth_deg: float = 30.0,
-    elevation_deg: float = 25.0,
+    azimuth_deg: float | None = None,
+    elevation_deg: float | None = None,
     body: Body = EARTH,
     theme: str | Palette = "light",
     title: str = "Orbit in GCRF (orthographic view)",
-    size: int = 520,
+    size: int = 460,
     sliders: bool = True,
 ):
     """The inertial view of one or more orbits (see ``inertial_data``).
@@ -248,8 +263,10 @@ def inertial_figure(
         x_label=axis_label("screen right", "km"),
         y_label=axis_label("screen up", "km"),
         theme=pal,
-        width=size,
-        height=size,
+        width=None,
+        height=None,
+        frame_width=size,
+        frame_height=size,
         match_aspect=True,
         x_range=(-extent, extent),
         y_range=(-extent, extent),
@@ -322,7 +339,7 @@ def inertial_figure(
                 tooltip("speed", "speed_km_s", "km/s", "0.000"),
             ],
         )
-    finish_legend(fig, pal, location="top_left")
+    finish_legend(fig, pal, outside="right")
     if not sliders:
         return fig
     az = Slider(
@@ -330,7 +347,7 @@ def inertial_figure(
         start=-180,
         end=180,
         step=1,
-        value=azimuth_deg,
+        value=data["view"]["azimuth_deg"][0],
         width=size // 2 - 10,
     )
     el = Slider(
@@ -338,7 +355,7 @@ def inertial_figure(
         start=-90,
         end=90,
         step=1,
-        value=elevation_deg,
+        value=data["view"]["elevation_deg"][0],
         width=size // 2 - 10,
     )
     targets = [

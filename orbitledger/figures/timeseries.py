@@ -74,18 +74,19 @@ def altitude_speed_figure(
     labels: Sequence[str] | None = None,
     body: Body = EARTH,
     theme: str | Palette = "light",
-    title: str = "Height and speed over the window",
+    title: str | None = None,
     width: int = 720,
 ):
     """Two stacked plots sharing the UTC time axis: height (km) and speed (km/s)."""
     pal = palette_for(theme)
     data = altitude_speed_data(series, body=body)
+    title = title or f"Height above the {body.name} ellipsoid and speed over the window"
     n = len(data)
     names = labels_for(labels, n, "orbit")
     top = new_figure(
         title=title,
         x_label=_TIME_LABEL,
-        y_label=axis_label(f"height above the {body.name} ellipsoid", "km"),
+        y_label=axis_label("height", "km"),
         theme=pal,
         width=width,
         height=240,
@@ -131,10 +132,7 @@ def altitude_speed_figure(
     top.xaxis.axis_label = None  # the shared time axis is labelled once, under the speed
     top.xaxis.major_label_text_font_size = "0px"
     finish_legend(top, pal, outside="above")
-    if n == 1:
-        bottom.legend.visible = False
-    else:
-        finish_legend(bottom, pal, outside="above")
+    bottom.legend.visible = False  # the top plot's legend names the series for both
     return column(top, bottom)
 
 
