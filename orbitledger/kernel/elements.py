@@ -20,16 +20,17 @@ not, and ``elements_to_state`` needs no special case.
 
 Where ``state_to_elements`` calls an orbit singular (robust tolerances, see below):
 
-- circular when e < ``CIRCULAR_E_TOL`` = 1e-11: e is then reported as 0;
-- equatorial when sin i < ``EQUATORIAL_SIN_I_TOL`` = 1e-11: i is then reported as exactly
+- circular when e < ``CIRCULAR_E_TOL`` = 1e-13: e is then reported as 0;
+- equatorial when sin i < ``EQUATORIAL_SIN_I_TOL`` = 1e-13: i is then reported as exactly
   0 or 180 deg.
 
-Why 1e-11: a state given to double precision fixes e and sin i only to about 1e-15, so an
-argument of perigee (or a RAAN) below the threshold would carry fewer than four significant
-digits; and adopting the convention there moves the position by at most about 2e-11 r
-(0.15 mm in low Earth orbit, 0.9 mm at geostationary radius), far below any orbit
-determination. Between the thresholds and ~1e-8 the angles are well defined but lose digits
-as 1e-16 / e; their sums (argp + nu, RAAN + argp) stay accurate, and so does the state.
+Why 1e-13: a state given to double precision fixes e and sin i only to a few times 1e-16
+(rounding of r and v), so a state built as circular or equatorial comes out with e or sin i
+of that size; 1e-13 catches such states with a margin of some hundreds, and adopting the
+convention there moves the position by at most about 2e-13 r (1.4 micrometre in low Earth
+orbit, 8 micrometre at geostationary radius). Above the thresholds the angles are kept as
+computed: argp (or RAAN) then carries only about 1e-16 / e (or 1e-16 / sin i) of precision,
+but the sums argp + nu and RAAN + argp stay accurate and so does the state.
 
 A parabola cannot be written with a finite (a, e): the semi-latus rectum p = a (1 - e)(1 + e)
 is carried through (1 - e)(1 + e), which is exact in floating point, so near-parabolic orbits
@@ -63,8 +64,9 @@ __all__ = [
     "EQUATORIAL_SIN_I_TOL",
 ]
 
-CIRCULAR_E_TOL = 1e-11
-EQUATORIAL_SIN_I_TOL = 1e-11
+# Tolerances for the singular conventions (reasons in the module docstring).
+CIRCULAR_E_TOL = 1e-13
+EQUATORIAL_SIN_I_TOL = 1e-13
 _NEAREST_HYPERBOLA_E = float(np.nextafter(1.0, 2.0))
 
 
