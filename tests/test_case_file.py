@@ -130,9 +130,10 @@ def test_with_changes_paths_and_either_or_partners():
     assert by_a.orbit.a_km == 6920.0 and by_a.orbit.altitude_km is None
     with pytest.raises(CaseError, match="orbit.ecc: unknown field; did you mean 'e'"):
         case.with_changes({"orbit.ecc": 0.01})
+    bare = case.with_changes({"budget": None})
     with pytest.raises(CaseError, match="budget: not set in this case"):
-        case.with_changes({"budget.mission_years": 5.0})
-    with_budget = case.with_changes({"budget": {"mission_years": 5.0, "margin_percent": 10.0}})
+        bare.with_changes({"budget.mission_years": 5.0})
+    with_budget = bare.with_changes({"budget": {"mission_years": 5.0, "margin_percent": 10.0}})
     assert with_budget.budget.mission_years == 5.0
 
 

@@ -14,6 +14,8 @@ def _write_case(tmp_path, with_plan: bool = True):
     from orbitledger.case import starter_case
 
     data = starter_case().to_data()
+    data.pop("burns", None)
+    data.pop("budget", None)
     if with_plan:
         data["burns"] = [
             {

@@ -11,13 +11,17 @@ from .inputs import (
     case_stations,
     case_trajectory,
 )
-from .results import ALL_GROUPS, FAST_GROUPS, Result, case_results, results_as_values
+from .manoeuvres import budget_for_case, burn_plan_for_case
+from .result import Result
+from .results import ALL_GROUPS, FAST_GROUPS, case_results, results_as_values
 
 __all__ = [
     "ALL_GROUPS",
     "FAST_GROUPS",
     "Result",
     "ballistic_coefficient_kg_m2",
+    "budget_for_case",
+    "burn_plan_for_case",
     "case_earth_orientation",
     "case_force_model",
     "case_results",

@@ -72,12 +72,10 @@ def case_trajectory(
     ``duration_s`` overrides the window length (the start stays the window's start).
     """
     fm = case.force_model
-    if fm.propagator == "sgp4":
-        raise InputError(
-            "force_model.propagator",
-            "sgp4",
-            "SGP4 needs the case's TLE source (orbitledger import)",
-        )
+    if fm.propagator == "sgp4":  # the sgp4 package sits outside the kernel, in exchange
+        from ..exchange.tle import case_tle_trajectory
+
+        return case_tle_trajectory(case, duration_s=duration_s)
     numerical = fm.propagator == "numerical"
     return trajectory(
         fm.propagator,

@@ -1,7 +1,8 @@
 """The starter case: Kestrel-2 of the Fenwick Orbital Lab, an invented demonstration mission.
 
-A 48 kg Earth-observation smallsat in a 540 km near-circular sun-synchronous orbit, with three
-invented ground stations. Written by ``orbitledger new`` and by ``open_case`` for a missing file.
+A 48 kg Earth-observation smallsat released near 540 km in a near-circular sun-synchronous
+orbit, with three invented ground stations, a burn plan that raises it to its operational
+545 km circular orbit, and a five-year delta-v budget with a disposal line. Written by ``orbitledger new`` and by ``open_case`` for a missing file.
 """
 
 from __future__ import annotations
@@ -64,6 +65,23 @@ STARTER_DATA = {
         },
     ],
     "window": {"duration_s": 86400.0, "step_s": 10.0},
+    "burns": [
+        {
+            "name": "raise to operational 545 km",
+            "at": {"apsis": "apoapsis"},
+            "transfer": {"kind": "circular", "altitude_km": 545.0},
+        }
+    ],
+    "budget": {
+        "mission_years": 5.0,
+        "margin_percent": 10.0,
+        "allowances": [
+            {"name": "launch dispersion correction", "dv_km_s": 0.010},
+            {"name": "collision avoidance", "dv_km_s": 0.0005, "per_year": True},
+        ],
+        "station_keeping": True,
+        "disposal": {"lifetime_limit_years": 5.0, "reentry_altitude_km": 120.0},
+    },
 }
 
 
