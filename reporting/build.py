@@ -26,6 +26,7 @@ from orbitledger.kernel.errors import InputError
 
 from . import record as rec
 from .diff import diff_records, summary_lines
+from .figure_items import item_fingerprint
 
 __all__ = [
     "FIGURE_MIME",
@@ -35,6 +36,7 @@ __all__ = [
     "assemble_record",
     "build",
     "execute_study",
+    "record_run",
     "read_notebook",
 ]
 
@@ -195,7 +197,9 @@ def archived_notebook(nb: Any) -> Any:
     nb = copy.deepcopy(nb)
     for cell in nb.cells:
         if cell.cell_type == "code":
-            cell.outputs = [o for o in cell.get("outputs", []) if _BOKEHJS_LOAD not in o.get("data", {})]
+            cell.outputs = [
+                o for o in cell.get("outputs", []) if _BOKEHJS_LOAD not in o.get("data", {})
+            ]
     return nb
 
 
@@ -242,7 +246,7 @@ def _figures(nb: Any) -> list[dict[str, Any]]:
                     {
                         "name": fig["name"],
                         "caption": fig.get("caption", ""),
-                        "sha256": rec.fingerprint_of(fig["item"]),
+                        "sha256": item_fingerprint(fig["item"]),
                     }
                 )
     return out
@@ -356,8 +360,6 @@ def build(
     progress: bool = True,
 ) -> BuildOutcome:
     """Build the record of ``nb_path`` into the ledger (default ``ledger/`` beside the notebook)."""
-    from .ledger import Ledger
-    from .render_html import render_html
 
     unknown = set(to) - {"html", "pdf"}
     if unknown or not to:
@@ -366,6 +368,23 @@ def build(
     executed, manifest = execute_study(
         read_notebook(nb_path), nb_path.parent, name=nb_path.name, progress=progress
     )
+    return record_run(nb_path, executed, manifest, to=to, ledger_dir=ledger_dir, note=note)
+
+
+def record_run(
+    nb_path: str | Path,
+    executed: Any,
+    manifest: dict[str, Any],
+    *,
+    to: tuple[str, ...] = ("html",),
+    ledger_dir: str | Path | None = None,
+    note: str = "",
+) -> BuildOutcome:
+    """Assemble, render and commit the record of an executed study (the second half of build)."""
+    from .ledger import Ledger
+    from .render_html import render_html
+
+    nb_path = Path(nb_path).resolve()
     record = assemble_record(nb_path, executed, manifest, note=note)
     ledger = Ledger(ledger_dir if ledger_dir is not None else nb_path.parent / "ledger")
     reservation = ledger.reserve(

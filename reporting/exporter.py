@@ -27,6 +27,7 @@ from nbconvert.exporters import HTMLExporter
 from traitlets import default
 
 from .build import FIGURE_MIME
+from .figure_items import drawable_item
 from .templating import record_context
 
 __all__ = ["OrbitRecordExporter", "TEMPLATES_DIR", "safe_markdown", "sanitize_html"]
@@ -92,9 +93,7 @@ def safe_markdown(text: str) -> Markup:
 
 def json_for_script(value: Any) -> Markup:
     """JSON safe inside ``<script type="application/json">``: ``<``, ``>``, ``&`` as escapes."""
-    text = (
-        value if isinstance(value, str) else json.dumps(value, sort_keys=True, ensure_ascii=False)
-    )
+    text = value if isinstance(value, str) else json.dumps(value, ensure_ascii=False)
     text = text.replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")
     return Markup(text.replace("\u2028", "\\u2028").replace("\u2029", "\\u2029"))
 
@@ -115,10 +114,15 @@ def prepare_outputs(nb: Any) -> Any:
             continue
         kept = []
         for output in cell.get("outputs", []):
+            if output.get("output_type") == "execute_result":
+                output["output_type"] = "display_data"  # one rendering path for both
+                output.pop("execution_count", None)
             data = output.get("data", {})
             if FIGURE_MIME in data:
                 number += 1
-                output["data"] = {FIGURE_MIME: data[FIGURE_MIME]}
+                fig = dict(data[FIGURE_MIME])
+                fig["item"] = drawable_item(fig["item"])
+                output["data"] = {FIGURE_MIME: fig}
                 output.setdefault("metadata", {})["orbitledger_figure_number"] = number
             elif RESULT_MIME in data:
                 output["data"] = {RESULT_MIME: data[RESULT_MIME]}
@@ -211,7 +215,9 @@ class OrbitRecordExporter(HTMLExporter):
         resources = self._init_resources(resources)
         self.register_filter(
             "filter_data_type",
-            WidgetsDataTypeFilter(notebook_metadata=self._nb_metadata, parent=self, resources=resources),
+            WidgetsDataTypeFilter(
+                notebook_metadata=self._nb_metadata, parent=self, resources=resources
+            ),
         )
         return TemplateExporter.from_notebook_node(self, nb, resources, **kw)
 

@@ -294,7 +294,7 @@ class Ledger:
     def _move_aside(self, record_id: str, revision: int) -> None:
         folder = self._folder(record_id, revision)
         if folder.exists():
-            aside = self.path_inside(".abandoned")
+            aside = self.root / ".abandoned"  # fixed internal name, inside the ledger
             aside.mkdir(exist_ok=True)
             folder.rename(aside / f"{record_id}-r{revision:04d}-{time.time_ns()}")
 

@@ -16,7 +16,15 @@ from markupsafe import Markup
 from .build import FIGURE_MIME
 from .record import canonical_dumps
 
-__all__ = ["format_value", "record_context", "unit_of"]
+__all__ = [
+    "constants_table",
+    "format_value",
+    "inputs_side_by_side",
+    "models_side_by_side",
+    "record_context",
+    "standard_side_by_side",
+    "unit_of",
+]
 
 
 # Unit suffixes of case-file field names (docs/case-file.md), longest first.
@@ -68,48 +76,120 @@ _SECTION_ORDER = (
 def _cell(path: str, value: Any) -> dict[str, Any]:
     return {
         "text": "—" if value is None else format_value(value),
-        "unit": unit_of(path),
         "numeric": isinstance(value, int | float) and not isinstance(value, bool),
         "unset": value is None,
     }
 
 
-def case_sections(data: dict[str, Any]) -> list[dict[str, Any]]:
-    """A case's inputs as small tables: key/value per section, one row per station or burn."""
+def _section_of(path: str) -> str:
+    head = re.split(r"[.\[]", path, maxsplit=1)[0]
+    return head if "." in path or "[" in path else "case"
+
+
+def _section_key(name: str) -> tuple[int, str]:
+    order = ("case",) + _SECTION_ORDER
+    return (order.index(name) if name in order else 99, name)
+
+
+_CASES_PER_TABLE = 4  # columns of values that still fit an A4 page
+
+
+def inputs_side_by_side(inputs: list[dict[str, Any]]) -> list[dict[str, Any]]:
+    """Every input of every case, one row per field, one column per case (4 cases a table).
+
+    Rows are grouped by case-file section; a row whose values differ between the cases is
+    marked, so a trade between candidates reads at a glance.
+    """
     from .diff import flatten
 
-    keys = sorted(data, key=lambda k: (_SECTION_ORDER.index(k) if k in _SECTION_ORDER else 99, k))
-    general: list[dict[str, Any]] = []
-    sections = []
-    for key in keys:
-        value = data[key]
-        if isinstance(value, dict):
-            rows = [{"field": p, **_cell(p, v)} for p, v in flatten(value).items()]
-            sections.append({"title": key, "kind": "kv", "rows": rows})
-        elif isinstance(value, list) and value and all(isinstance(v, dict) for v in value):
-            flat = [flatten(v) for v in value]
-            columns = list(dict.fromkeys(c for row in flat for c in row))
-            sections.append(
+    flat = [flatten(json.loads(case["canonical"])) for case in inputs]
+    tables = []
+    for start in range(0, len(inputs), _CASES_PER_TABLE):
+        chunk = list(range(start, min(start + _CASES_PER_TABLE, len(inputs))))
+        paths = list(dict.fromkeys(p for i in chunk for p in flat[i]))
+        sections: dict[str, list[dict[str, Any]]] = {}
+        for path in paths:
+            values = [flat[i].get(path) for i in chunk]
+            section = _section_of(path)
+            field = path[len(section) :].lstrip(".") if section != "case" else path
+            sections.setdefault(section, []).append(
                 {
-                    "title": key,
-                    "kind": "table",
-                    "columns": [{"name": c, "unit": unit_of(c)} for c in columns],
-                    "rows": [[_cell(c, row.get(c)) for c in columns] for row in flat],
+                    "field": field,
+                    "unit": unit_of(path),
+                    "cells": [_cell(path, v) for v in values],
+                    "differs": len(chunk) > 1 and any(v != values[0] for v in values),
                 }
             )
-        elif isinstance(value, list):
-            sections.append(
+        tables.append(
+            {
+                "cases": [inputs[i]["name"] for i in chunk],
+                "sections": [
+                    {"title": name, "rows": sections[name]}
+                    for name in sorted(sections, key=_section_key)
+                ],
+            }
+        )
+    return tables
+
+
+def standard_side_by_side(blocks: list[dict[str, Any]]) -> list[dict[str, Any]]:
+    """The standard results of every case, one row per result, one column per case."""
+    tables = []
+    for start in range(0, len(blocks), _CASES_PER_TABLE):
+        chunk = blocks[start : start + _CASES_PER_TABLE]
+        by_case = [{r["name"]: r for r in b["results"]} for b in chunk]
+        names = list(dict.fromkeys(r["name"] for b in chunk for r in b["results"]))
+        rows = []
+        for name in names:
+            first = next(c[name] for c in by_case if name in c)
+            rows.append(
                 {
-                    "title": key,
-                    "kind": "kv",
-                    "rows": [{"field": "(list)", **_cell(key, value or "none")}],
+                    "name": name,
+                    "unit": first["unit"],
+                    "description": first["description"],
+                    "group": first["group"],
+                    "tolerance": _tolerance(first),
+                    "cells": [_cell("", c[name]["value"] if name in c else None) for c in by_case],
                 }
             )
+        tables.append({"cases": [b["case"] for b in chunk], "rows": rows})
+    return tables
+
+
+def _tolerance(row: dict[str, Any]) -> str:
+    text = f"rel {row.get('rel_tol', 0):.0e}"
+    if row.get("abs_tol"):
+        text += f", abs {row['abs_tol']:.0e}"
+    return text
+
+
+def models_side_by_side(models: list[dict[str, Any]]) -> dict[str, Any]:
+    """Models and assumptions, one row per topic; one column when every case agrees."""
+    if not models:
+        return {"cases": [], "rows": []}
+    topics = list(dict.fromkeys(item["topic"] for m in models for item in m["items"]))
+    values = [{item["topic"]: item["value"] for item in m["items"]} for m in models]
+    same = all(v == values[0] for v in values)
+    cases = ["all cases"] if same else [m["case"] for m in models]
+    rows = []
+    for topic in topics:
+        cells = [values[0].get(topic, "—")] if same else [v.get(topic, "—") for v in values]
+        rows.append({"topic": topic, "cells": cells, "differs": len(set(cells)) > 1})
+    return {"cases": cases, "rows": rows}
+
+
+def constants_table(inputs: list[dict[str, Any]]) -> list[dict[str, Any]]:
+    """The constants with their sources, once per distinct set, naming the cases using it."""
+    groups: list[dict[str, Any]] = []
+    for case in inputs:
+        rows = case.get("constants", [])
+        for group in groups:
+            if group["rows"] == rows:
+                group["cases"].append(case["name"])
+                break
         else:
-            general.append({"field": key, **_cell(key, value)})
-    if general:
-        sections.insert(0, {"title": "case", "kind": "kv", "rows": general})
-    return sections
+            groups.append({"cases": [case["name"]], "rows": rows})
+    return [g for g in groups if g["rows"]]
 
 
 def _signoff_rows(record: dict[str, Any]) -> list[dict[str, str]]:
@@ -166,18 +246,14 @@ def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
     from .exporter import json_for_script
 
     rev = record.get("revision")
-    inputs = []
-    for case in record.get("inputs", []):
-        data = json.loads(case["canonical"])
-        inputs.append(
-            {
-                "name": case["name"],
-                "title": data.get("meta", {}).get("title", ""),
-                "fingerprint": case["fingerprint"],
-                "sections": case_sections(data),
-                "constants": case.get("constants", []),
-            }
-        )
+    inputs = [
+        {
+            "name": case["name"],
+            "title": json.loads(case["canonical"]).get("meta", {}).get("title", ""),
+            "fingerprint": case["fingerprint"],
+        }
+        for case in record.get("inputs", [])
+    ]
     code_cells = [
         (i + 1, c.source)
         for i, c in enumerate(nb.cells)
@@ -191,6 +267,10 @@ def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
         "footer_label": f"{record['record_id']} rev {rev if rev is not None else 'unrecorded'}",
         "signoffs": _signoff_rows(record),
         "inputs": inputs,
+        "input_tables": inputs_side_by_side(record.get("inputs", [])),
+        "constant_groups": constants_table(record.get("inputs", [])),
+        "models_table": models_side_by_side(record.get("models", [])),
+        "standard_tables": standard_side_by_side(record.get("standard_results", [])),
         "bokeh_js": _bokeh_js(nb),
         "code_cells": code_cells,
         "narrative_skip": narrative_skip,

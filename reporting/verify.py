@@ -30,6 +30,7 @@ from orbitledger._version import __version__
 from orbitledger.kernel.errors import InputError
 
 from . import record as rec
+from .figure_items import item_fingerprint
 
 __all__ = ["Check", "VerifyReport", "read_record", "verify_file", "verify_record"]
 
@@ -235,7 +236,7 @@ def _check_extras(report: VerifyReport, record: dict[str, Any], extras: dict[str
             "" if ok else f"record lists {len(stated)}, the HTML draws {len(drawn)}",
         )
         for f, (name, item) in zip(stated, drawn, strict=False):
-            same = rec.fingerprint_of(item) == f["sha256"] and name == f["name"]
+            same = item_fingerprint(item) == f["sha256"] and name == f["name"]
             report.add(
                 f"figure {f['name']}: fingerprint",
                 same,
