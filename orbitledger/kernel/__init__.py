@@ -98,3 +98,4 @@ from .forces import ForceModel, acceleration_km_s2, ballistic_coefficient_kg_m2
 from .cowell import CowellResult, propagate_cowell
 from .lifetime import LIFETIME_CAUTION, LifetimeResult, lifetime_years
 from .summary import orbit_cautions, orbit_summary
+from .teme import gcrf_to_teme, gcrf_to_teme_matrix, teme_to_gcrf
