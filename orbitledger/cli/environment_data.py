@@ -76,12 +76,10 @@ def case_trajectory(case: Any, progress: Callable[[float], None] | None = None):
             "body.name", body.name, "station, eclipse and ground-track analyses are for the Earth"
         )
     propagator = case.force_model.propagator
-    if propagator == "sgp4":
-        raise InputError(
-            "force_model.propagator",
-            propagator,
-            "not yet available for these analyses: use two-body, j2-mean or numerical",
-        )
+    if propagator == "sgp4":  # from the case's TLE, as every face does (analysis.inputs)
+        from ..analysis.inputs import case_trajectory as shared_case_trajectory
+
+        return shared_case_trajectory(case, progress=progress)
     eo = case.earth_orientation
     eop = EarthOrientation(eo.dut1_s, eo.xp_arcsec, eo.yp_arcsec)
     options = None
