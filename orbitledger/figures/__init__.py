@@ -11,6 +11,7 @@ from .budget import budget_data, budget_figure
 from .groundtrack import ground_track_data, ground_track_figure, station_circle
 from .inertial import inertial_data, inertial_figure, project, reproject
 from .mapping import split_at_antimeridian, visibility_central_angle_deg
+from .orbit_plane import orbit_plane_data, orbit_plane_figure
 from .palette import DARK, LIGHT, OKABE_ITO, Palette, palette_for, sequential
 from .show import FIGURE_MIME_TYPE, ensure_notebook_bokehjs, forget_figures, show, shown_figures
 from .sources import sources_of, update_figure
@@ -44,6 +45,8 @@ __all__ = [
     "ground_track_figure",
     "inertial_data",
     "inertial_figure",
+    "orbit_plane_data",
+    "orbit_plane_figure",
     "palette_for",
     "project",
     "reproject",
@@ -58,12 +61,3 @@ __all__ = [
     "update_figure",
     "visibility_central_angle_deg",
 ]
-
-# The orbit-plane view needs kernel.orbit_summary; it joins the package's names once the
-# kernel provides it (the editor looks the builder up by name and skips it until then).
-from .. import kernel as _kernel
-
-if hasattr(_kernel, "orbit_summary"):
-    from .orbit_plane import orbit_plane_data, orbit_plane_figure
-
-    __all__ += ["orbit_plane_data", "orbit_plane_figure"]
