@@ -41,9 +41,9 @@ def test_passes_json_and_astropy_elevation_at_max(tmp_path: Path, capsys, monkey
     code, out, err = _run(capsys, "passes", str(path), "--json")
     assert code == 0
     data = json.loads(out)
-    # 2027 lies beyond the announced leap seconds (IERS Bulletin C 70): flagged, warned once.
-    assert data["utc_tai_extrapolated"] is True
-    assert err.count("UTC - TAI is extrapolated") == 1
+    # 2027-03-21 lies within the leap seconds announced by IERS Bulletin C 72 (to 2027-06-28).
+    assert data["utc_tai_extrapolated"] is False
+    assert "UTC - TAI is extrapolated" not in err
     assert len(data["passes"]) >= 3
     masks = {s["name"]: s["elevation_mask_deg"] for s in data["stations"]}
     for p in data["passes"]:
@@ -184,3 +184,22 @@ def test_orbit_decaying_inside_the_window_is_reported_not_a_crash(tmp_path: Path
     decay_s = float(decay[0].split(" at ")[1].split(" s")[0])
     assert 0.0 < decay_s < 3 * 86400.0
     assert max(e["exit_s"] for e in data["eclipses"]) <= decay_s + 1.0
+
+
+def test_far_future_window_records_the_extrapolated_utc_tai(
+    tmp_path: Path, capsys, monkeypatch
+) -> None:
+    # Leap seconds are announced about six months ahead (IERS Bulletin C; common practice):
+    # a 2031 window is flagged in the JSON and warned about once on stderr.
+    from orbitledger.kernel import timescales
+
+    monkeypatch.setattr(timescales._WarnOnce, "issued", False)
+    path = _case(
+        tmp_path,
+        epoch_utc="2031-03-21T10:30:00Z",
+        window={"start_utc": None, "duration_s": 7200.0, "step_s": 30.0},
+    )
+    code, out, err = _run(capsys, "eclipses", str(path), "--json")
+    assert code == 0
+    assert json.loads(out)["utc_tai_extrapolated"] is True
+    assert err.count("UTC - TAI is extrapolated") == 1

@@ -40,10 +40,12 @@ __all__ = [
 
 EpochLike = Union[str, _dt.datetime, np.datetime64, Sequence[Any], np.ndarray, tuple, "TimeScales"]
 
-# No leap second at the end of December 2025 (IERS Bulletin C 70, July 2025), so UTC - TAI is
-# announced until 2026-06-28 (expiry of the IERS leap-seconds.list that goes with it; from
-# memory). A newer table loaded into ERFA (``erfa.leap_seconds``, e.g. by astropy) wins.
-_ANNOUNCED_UNTIL = _dt.date(2026, 6, 28)
+# IERS Bulletin C 72 (July 2026): no leap second at the end of December 2026, so UTC - TAI is
+# announced until 2027-06-28, the expiry of the IERS Leap_Second.dat that goes with it (as
+# shipped in astropy-iers-data 0.2026.11.2). A newer table loaded into ERFA wins; an older
+# one (pyerfa's built-in table expires 2017-06-30) never shortens this date, so a result does
+# not depend on whether another library loaded its table first.
+_ANNOUNCED_UNTIL = _dt.date(2027, 6, 28)
 
 _ISO = re.compile(
     r"^\s*(\d{4})-(\d{2})-(\d{2})(?:[T ](\d{2}):(\d{2})(?::(\d{2}(?:\.\d*)?))?)?"
@@ -161,7 +163,7 @@ def parse_utc(epoch_utc: EpochLike, field: str = "epoch_utc") -> tuple[np.ndarra
 
 def leap_seconds_known_until_utc() -> _dt.date:
     """Last date to which UTC - TAI is known: the later of ERFA's table expiry and the latest
-    announcement this module cites (IERS Bulletin C 70)."""
+    announcement this module cites (IERS Bulletin C 72)."""
     expires = erfa.leap_seconds.expires
     table_date = expires.date() if isinstance(expires, _dt.datetime) else _ANNOUNCED_UNTIL
     return max(table_date, _ANNOUNCED_UNTIL)
