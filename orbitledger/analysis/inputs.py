@@ -12,6 +12,7 @@ from typing import Any
 
 from ..kernel.errors import InputError
 from ..kernel.forces import ForceModel as KernelForceModel
+from ..kernel.forces import ballistic_coefficient_kg_m2 as _ballistic_coefficient
 from ..kernel.passes import Station as KernelStation
 from ..kernel.propagation import EarthOrientation as KernelEarthOrientation
 from ..kernel.propagation import Trajectory, trajectory
@@ -44,7 +45,7 @@ def ballistic_coefficient_kg_m2(case: Any, *, field: str = "spacecraft") -> floa
         raise InputError(
             field, None, "this analysis needs the spacecraft's mass, drag area and drag coefficient"
         )
-    return sc.mass_kg / (sc.drag_coefficient * sc.drag_area_m2)
+    return float(_ballistic_coefficient(sc.mass_kg, sc.drag_area_m2, sc.drag_coefficient))
 
 
 def case_force_model(case: Any) -> KernelForceModel:

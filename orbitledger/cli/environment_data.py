@@ -46,59 +46,19 @@ def recorded_warnings() -> Iterator[list[str]]:
             lines.append(text)
 
 
-def _kernel_force_model(case: Any, body: Any):
-    from ..kernel.forces import ForceModel, ballistic_coefficient_kg_m2
-
-    fm = case.force_model
-    b = None
-    if fm.drag:
-        craft = case.spacecraft
-        b = float(
-            ballistic_coefficient_kg_m2(craft.mass_kg, craft.drag_area_m2, craft.drag_coefficient)
-        )
-    return ForceModel(
-        zonal_degree=fm.zonal_degree,
-        ballistic_coefficient_kg_m2=b,
-        solar_activity=fm.solar_activity,
-        third_bodies=tuple(fm.third_body),
-        body=body,
-    )
-
-
 def case_trajectory(case: Any, progress: Callable[[float], None] | None = None):
-    """The kernel ``Trajectory`` of a case over its analysis window, by its propagator."""
+    """The kernel ``Trajectory`` of a case over its analysis window (``analysis.inputs``),
+    refused for a central body other than the Earth (these analyses need the Earth's
+    rotation, shape and shadow)."""
+    from ..analysis.inputs import case_trajectory as shared_case_trajectory
     from ..kernel.errors import InputError
-    from ..kernel.propagation import EarthOrientation, trajectory
 
     body = case.body_constants()
     if body.name.lower() != "earth":
         raise InputError(
             "body.name", body.name, "station, eclipse and ground-track analyses are for the Earth"
         )
-    propagator = case.force_model.propagator
-    if propagator == "sgp4":  # from the case's TLE, as every face does (analysis.inputs)
-        from ..analysis.inputs import case_trajectory as shared_case_trajectory
-
-        return shared_case_trajectory(case, progress=progress)
-    eo = case.earth_orientation
-    eop = EarthOrientation(eo.dut1_s, eo.xp_arcsec, eo.yp_arcsec)
-    options = None
-    model = None
-    if propagator == "numerical":
-        model = _kernel_force_model(case, body)
-        options = {"rtol": case.force_model.rtol, "atol_km": case.force_model.atol_km}
-    return trajectory(
-        propagator,
-        case.elements(),
-        case.epoch_utc,
-        start_utc=case.window_start_utc,
-        duration_s=case.window.duration_s,
-        body=body,
-        eop=eop,
-        force_model=model,
-        cowell_options=options,
-        progress=progress,
-    )
+    return shared_case_trajectory(case, progress=progress)
 
 
 def _header(case: Any, traj: Any, kind: str) -> dict[str, Any]:
@@ -125,15 +85,13 @@ def _header(case: Any, traj: Any, kind: str) -> dict[str, Any]:
 
 def passes_data(case: Any, progress: Callable[[float], None] | None = None) -> dict[str, Any]:
     """Every pass over the case's stations in its window, with daily statistics."""
+    from ..analysis.inputs import case_stations
     from ..kernel.errors import InputError
-    from ..kernel.passes import Station, station_passes
+    from ..kernel.passes import station_passes
 
     if not case.stations:
         raise InputError("stations", [], "the case has no stations: add one to compute passes")
-    stations = [
-        Station(s.name, s.lat_deg, s.lon_deg, s.height_km, s.elevation_mask_deg)
-        for s in case.stations
-    ]
+    stations = case_stations(case)
     with recorded_warnings() as notes:
         traj = case_trajectory(case, progress)
         found = station_passes(traj, stations, case.window.duration_s, step_s=case.window.step_s)
