@@ -19,7 +19,7 @@ from ..case import SCHEMA_ID, Case, case_from_data
 from ..kernel.errors import InputError
 from .tle import TwoLineElements, parse_tle, tle_gcrf_states, warn_if_far
 
-__all__ = ["ImportedCase", "orbit_case_data", "record_id_for", "tle_case"]
+__all__ = ["ImportedCase", "opm_case", "orbit_case_data", "record_id_for", "tle_case"]
 
 _PROPAGATORS = ("sgp4", "two-body", "j2-mean", "numerical")
 
@@ -124,3 +124,85 @@ def tle_case(
         f"{tle.element_set_number}).",
     )
     return ImportedCase(case_from_data(data), "tle", tuple(str(w.message) for w in caught))
+
+
+def _opm_burns(opm: Any, epoch_utc: str) -> tuple[list[dict[str, Any]], list[str]]:
+    """Impulsive RTN maneuvers as burns; the others named in warnings (no case form)."""
+    from ..case.utc import utc_seconds_between
+    from .ccsds import ccsds_epoch_utc
+
+    burns, notes = [], []
+    for k, man in enumerate(opm.maneuvers):
+        label = f"OPM maneuver {k + 1} (line {man.line})"
+        named = [c[5:].strip() for c in man.comments if c.startswith("Burn:")]  # ours
+        if man.duration_s != 0.0 or man.ref_frame not in ("RTN", "RSW"):
+            notes.append(
+                f"{label} not imported: the case's burn plan holds impulsive burns in RTN, and "
+                f"this one lasts {man.duration_s:g} s in {man.ref_frame}"
+            )
+            continue
+        when = ccsds_epoch_utc(man.epoch_ignition, opm.time_system, man.line, "MAN_EPOCH_IGNITION")
+        if utc_seconds_between(epoch_utc, when) < 0.0:
+            notes.append(f"{label} not imported: it lies before the state's epoch")
+            continue
+        name = named[0] if named and named[0] else label
+        burns.append({"name": name, "at": {"epoch_utc": when}, "dv_rtn_km_s": list(man.dv_km_s)})
+    return burns, notes
+
+
+def opm_case(
+    text: str,
+    *,
+    file: str = "",
+    propagator: str = "two-body",
+    title: str | None = None,
+    record_id: str | None = None,
+) -> ImportedCase:
+    """A case from a CCSDS OPM (KVN): its state vector in GCRF at its epoch (UTC).
+
+    Spacecraft parameters become the spacecraft section when MASS, DRAG_AREA and DRAG_COEFF
+    are all given; impulsive maneuvers in RTN become epoch burns; anything else that has no
+    case form is named in the warnings (and the source note). The OPM text is kept verbatim.
+    """
+    from .opm import opm_state_gcrf, parse_opm
+
+    _check_propagator(propagator)
+    if propagator == "sgp4":
+        raise InputError("propagator", propagator, "SGP4 propagates TLEs, not OPM state vectors")
+    opm = parse_opm(text)
+    epoch, r, v = opm_state_gcrf(opm)
+    burns, notes = _opm_burns(opm, epoch)
+    if opm.ref_frame.startswith("ITRF"):
+        notes.append(
+            f"REF_FRAME {opm.ref_frame}: rotated to GCRF with UT1 - UTC and polar motion taken "
+            "as zero (the OPM states none); set earth_orientation and import again if known"
+        )
+    extra: dict[str, Any] = {}
+    sc = opm.spacecraft
+    if all(k in sc for k in ("MASS", "DRAG_AREA", "DRAG_COEFF")):
+        extra["spacecraft"] = {
+            "name": opm.object_name,
+            "mass_kg": sc["MASS"],
+            "drag_area_m2": sc["DRAG_AREA"],
+            "drag_coefficient": sc["DRAG_COEFF"],
+        }
+    if burns:
+        extra["burns"] = burns
+    note = (
+        f"CCSDS OPM {opm.version} from {opm.originator} ({opm.creation_date}): state in "
+        f"{opm.ref_frame}, {opm.time_system}" + "".join(f"; {n}" for n in notes)
+    )
+    data = orbit_case_data(
+        title=title or f"{opm.object_name} ({opm.object_id}) from an OPM of {opm.originator}",
+        record_id=record_id or record_id_for("OPM", opm.object_id),
+        epoch_utc=epoch,
+        r_km=r,
+        v_km_s=v,
+        source={"kind": "opm", "text": text, "file": file, "note": note[:2000]},
+        propagator=propagator,
+        description=f"Imported from a CCSDS OPM ({opm.object_name}, {opm.object_id}).",
+        extra=extra,
+    )
+    for n in notes:
+        warnings.warn(n, UserWarning, stacklevel=2)
+    return ImportedCase(case_from_data(data), "opm", tuple(notes))
