@@ -23,6 +23,7 @@ VERB_MODULES = [
     "orbitledger.cli.lifetime_verbs",
     "orbitledger.cli.report_verbs",
     "orbitledger.cli.environment_verbs",
+    "orbitledger.cli.exchange_verbs",
 ]
 
 
