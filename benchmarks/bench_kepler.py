@@ -18,7 +18,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 from _timing import min_times_s, report_ratios  # noqa: E402
 
 from orbitledger.kernel import solve_kepler  # noqa: E402
-from orbitledger.kernel.kepler import hyperbolic_kepler_residual  # noqa: E402
+from orbitledger.kernel.kepler_hyperbolic import hyperbolic_kepler_residual  # noqa: E402
 
 N = 1_000_000
 

@@ -7,7 +7,8 @@ import pytest
 from scipy.optimize import brentq
 
 from orbitledger.kernel import InputError, solve_kepler
-from orbitledger.kernel.kepler import hyperbolic_kepler_residual, solve_kepler_elliptic_sincos
+from orbitledger.kernel.kepler import solve_kepler_elliptic_sincos
+from orbitledger.kernel.kepler_hyperbolic import hyperbolic_kepler_residual
 
 
 def test_vallado_example_2_1():
@@ -35,11 +36,18 @@ def test_against_scipy_brentq():
     M = rng.uniform(-10.0, 10.0, 200)
     e = np.concatenate([rng.uniform(0.0, 0.9999, 100), rng.uniform(1.0001, 20.0, 100)])
     got = solve_kepler(M, e)
-    for Mi, ei, Ei in zip(M, e, got):
+
+    def elliptic(x, ei, Mi):
+        return x - ei * math.sin(x) - Mi
+
+    def hyperbolic(x, ei, Mi):
+        return ei * math.sinh(x) - x - Mi
+
+    for Mi, ei, Ei in zip(M, e, got, strict=True):
         if ei < 1.0:
-            ref = brentq(lambda x: x - ei * math.sin(x) - Mi, Mi - 1.0, Mi + 1.0, xtol=1e-15)
+            ref = brentq(elliptic, Mi - 1.0, Mi + 1.0, args=(ei, Mi), xtol=1e-15)
         else:
-            ref = brentq(lambda x: ei * math.sinh(x) - x - Mi, -30.0, 30.0, xtol=1e-15)
+            ref = brentq(hyperbolic, -30.0, 30.0, args=(ei, Mi), xtol=1e-15)
         assert abs(Ei - ref) < 1e-12 * max(1.0, abs(ref))
 
 

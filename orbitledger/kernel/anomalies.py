@@ -27,7 +27,8 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from .errors import InputError
-from .kepler import hyperbolic_kepler_residual, solve_kepler, x_minus_sin_x
+from .kepler import solve_kepler
+from .kepler_hyperbolic import hyperbolic_kepler_residual, x_minus_sin_x
 
 __all__ = [
     "true_to_eccentric_anomaly",

@@ -1,32 +1,29 @@
 """Kepler's equation, elliptic and hyperbolic, solved to machine precision over arrays.
 
-Elliptic (0 <= e < 1):   M = E - e sin E        (E: eccentric anomaly)
-Hyperbolic (e > 1):      M = e sinh H - H       (H: hyperbolic anomaly)
+Elliptic (0 <= e < 1): M = E - e sin E (E: eccentric anomaly); hyperbolic (e > 1):
+M = e sinh H - H (H: hyperbolic anomaly).
 
 Elliptic method: F. L. Markley, "Kepler Equation Solver", Celestial Mechanics and Dynamical
-Astronomy 63:101-111 (1995): the cubic (Pade-type) starter of his Sect. 2, eqs. (5)-(20), whose
-error is below 4e-4 rad for every e and M, followed by the one fifth-order correction of his
-Sect. 3, eqs. (21)-(29) (the Halley step d3, then d4, d5 from the quartic Taylor polynomial).
-One sine, one square root and one cube root per element, no iteration.
+Astronomy 63:101-111 (1995): the paper's cubic (Pade-type) starter, whose error we measure
+below 4e-4 rad for every e and M, then its single fifth-order correction (a Halley step d3,
+then d4 and d5 from the quartic Taylor polynomial; equation numbers not quoted here). One
+sine, one square root and one cube root per element, no iteration.
 
-Hyperbolic method: the larger-M starter H0 = ln(2|M|/e + 1.8) of J. M. A. Danby, Fundamentals
-of Celestial Mechanics, 2nd ed. (1988), Ch. 6 (section number from memory), capped by the root
-of the cubic (e - 1) H + e H^3 / 6 = |M|, an upper bound of the true root because
-sinh H >= H + H^3/6; then the same fifth-order correction (Markley 1995, Sect. 3) applied
-until the step is below one ulp. The residual is evaluated as (e - 1) sinh H + (sinh H - H)
-with a series for sinh H - H, so orbits near parabolic keep relative accuracy.
+Hyperbolic method (module kepler_hyperbolic): the starter of J. M. A. Danby, Fundamentals of
+Celestial Mechanics, 2nd ed. (1988), capped by a cubic upper bound, then Markley's
+fifth-order correction repeated to convergence, with cancellation-free residuals near e = 1.
 
 Numerical notes (why this meets 1e-13 rad at a few times the cost of one numpy.sin):
-- numpy's float64 sine costs about as much as 15-25 arithmetic ufunc passes, so the budget is
-  spent on arithmetic: every intermediate reuses one of a dozen preallocated buffers of 8192
-  elements (64 KiB, resident in the L2 cache) through ``out=`` and in-place operators. The
-  Python loop runs over chunks, never over elements.
-- cos E is taken from sqrt(1 - sin^2 E) with the sign of pi/2 - E; within 0.1 rad of pi/2,
-  where that loses digits, the series cos E = sin y = y - y^3/6 + ... - y^7/5040 + y^9/9!
-  (y = pi/2 - E, truncation < 3e-19) replaces it, so cos E is good to ~1e-15 everywhere.
-  (A cosine error dc enters the result as (Markley's correction) * dc <= 4e-4 dc.)
-- M is reduced to [-pi, pi] and the solution is computed for |M|, then the sign and the whole
-  revolutions are put back, so E - e sin E = M holds for the M given.
+- numpy's float64 sine costs as much as 15-25 arithmetic ufunc passes, so the budget goes to
+  arithmetic: every intermediate reuses one of a dozen preallocated buffers of 8192 elements
+  (64 KiB, resident in cache) through ``out=`` and in-place operators. The Python loop runs
+  over chunks, never over elements.
+- cos E is sqrt(1 - sin^2 E) with the sign of pi/2 - E; within 0.1 rad of pi/2, where that
+  loses digits, the series cos E = sin y (y = pi/2 - E, to y^9/9!, truncation < 3e-19)
+  replaces it. (A cosine error dc enters E only as Markley's correction times dc.)
+- M is reduced to [-pi, pi], the root found for |M|, then the sign and whole revolutions are
+  put back, so E - e sin E = M holds for the M given. Where e > 0.99 and |E| < 1, two Newton
+  steps with cancellation-free residual restore relative accuracy in tiny M.
 """
 
 from __future__ import annotations
@@ -37,19 +34,26 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from .errors import InputError
+from .kepler_hyperbolic import solve_hyperbolic_kepler, x_minus_sin_x
 
-__all__ = ["solve_kepler", "solve_kepler_elliptic_sincos", "hyperbolic_kepler_residual"]
+__all__ = [
+    "solve_kepler",
+    "solve_kepler_elliptic_sincos",
+    "KeplerWorkspace",
+    "elliptic_sincos_into",
+    "CHUNK_SIZE",
+]
 
 _PI = math.pi
 _TWO_PI = 2.0 * math.pi
 _INV_TWO_PI = 1.0 / _TWO_PI
 _HALF_PI = 0.5 * math.pi
-# Markley (1995) eq. (20): alpha = (3 pi^2 + 1.6 pi (pi - |M|) / (1 + e)) / (pi^2 - 6).
+# Markley (1995): alpha = (3 pi^2 + 1.6 pi (pi - |M|) / (1 + e)) / (pi^2 - 6).
 _ALPHA_0 = 3.0 * _PI**2 / (_PI**2 - 6.0)
 _ALPHA_1 = 1.6 * _PI / (_PI**2 - 6.0)
 # Below this distance from pi/2 the cosine comes from its series (truncation y^11/11! < 3e-19).
 _COS_SERIES_BAND_RAD = 0.1
-_CHUNK = 8192
+CHUNK_SIZE = 8192
 _N_BUFFERS = 11
 
 
@@ -63,7 +67,7 @@ def solve_kepler(mean_anomaly_rad: ArrayLike, e: ArrayLike) -> np.ndarray | floa
     an array of the broadcast shape, or a float for scalar inputs.
     Accuracy (benchmarks/bench_kepler.py, tests/test_kepler.py): elliptic residual
     |E - e sin E - M| <= 1e-14 rad for |M| <= pi and every e in [0, 1); hyperbolic residual
-    <= 4e-16 |M| relative (evaluated in extended precision) for e in (1, 1e6].
+    <= 4e-15 |M| relative (evaluated in extended precision) for e in (1, 1e6].
     Raises InputError for e < 0, e == 1 (parabolic: see anomalies.parabolic_mean_to_true) or a
     non-finite e. A NaN mean anomaly gives NaN.
     Methods: Markley (1995) for e < 1; Danby (1988) starter and Markley's fifth-order
@@ -79,7 +83,7 @@ def solve_kepler(mean_anomaly_rad: ArrayLike, e: ArrayLike) -> np.ndarray | floa
         if e0 < 1.0:
             out = _elliptic(M_flat, e0)[0]
         else:
-            out = _hyperbolic(M_flat, np.full_like(M_flat, e0))
+            out = solve_hyperbolic_kepler(M_flat, np.full_like(M_flat, e0))
     else:
         e_flat = np.ascontiguousarray(np.broadcast_to(ecc, shape)).ravel()
         out = np.empty_like(M_flat)
@@ -87,11 +91,11 @@ def solve_kepler(mean_anomaly_rad: ArrayLike, e: ArrayLike) -> np.ndarray | floa
         if ell.all():
             out = _elliptic(M_flat, e_flat)[0]
         elif not ell.any():
-            out = _hyperbolic(M_flat, e_flat)
+            out = solve_hyperbolic_kepler(M_flat, e_flat)
         else:
             out[ell] = _elliptic(np.ascontiguousarray(M_flat[ell]), e_flat[ell])[0]
             hyp = ~ell
-            out[hyp] = _hyperbolic(M_flat[hyp], e_flat[hyp])
+            out[hyp] = solve_hyperbolic_kepler(M_flat[hyp], e_flat[hyp])
     out = out.reshape(shape)
     return float(out) if out.ndim == 0 else out
 
@@ -113,22 +117,13 @@ def solve_kepler_elliptic_sincos(
     M = np.asarray(mean_anomaly_rad, dtype=float)
     shape = np.broadcast_shapes(M.shape, ecc.shape)
     M_flat = np.ascontiguousarray(np.broadcast_to(M, shape)).ravel()
-    if ecc.size == 1:
-        e_arg = float(ecc.reshape(()))
-    else:
-        e_arg = np.ascontiguousarray(np.broadcast_to(ecc, shape)).ravel()
+    e_arg: float | np.ndarray = (
+        float(ecc.reshape(()))
+        if ecc.size == 1
+        else np.ascontiguousarray(np.broadcast_to(ecc, shape)).ravel()
+    )
     E, s, c = _elliptic(M_flat, e_arg, sincos=True)
     return E.reshape(shape), s.reshape(shape), c.reshape(shape)
-
-
-def hyperbolic_kepler_residual(H: ArrayLike, e: ArrayLike, mean_anomaly_rad: ArrayLike):
-    """e sinh H - H - M evaluated without cancellation near H = 0 (rad).
-
-    Written as (e - 1) sinh H + (sinh H - H) - M, with a series for sinh H - H when |H| < 2.
-    """
-    H = np.asarray(H, dtype=float)
-    e = np.asarray(e, dtype=float)
-    return (e - 1.0) * np.sinh(H) + _sinh_minus_x(H) - mean_anomaly_rad
 
 
 def _check_eccentricity(ecc: np.ndarray) -> None:
@@ -147,9 +142,6 @@ def _check_eccentricity(ecc: np.ndarray) -> None:
         )
 
 
-CHUNK_SIZE = _CHUNK
-
-
 class KeplerWorkspace:
     """Scratch buffers for the elliptic solver on chunks of at most ``size`` elements.
 
@@ -157,7 +149,7 @@ class KeplerWorkspace:
     and calls ``elliptic_sincos_into`` per chunk, so no buffer is allocated inside the loop.
     """
 
-    def __init__(self, size: int = _CHUNK) -> None:
+    def __init__(self, size: int = CHUNK_SIZE) -> None:
         self.size = int(size)
         self.buffers = [np.empty(self.size) for _ in range(_N_BUFFERS)]
         self.mask = np.empty(self.size, dtype=bool)
@@ -184,10 +176,10 @@ def _elliptic(M: np.ndarray, e, sincos: bool = False):
     E = np.empty(n)
     s_out = np.empty(n) if sincos else None
     c_out = np.empty(n) if sincos else None
-    workspace = KeplerWorkspace(min(n, _CHUNK))
+    workspace = KeplerWorkspace(min(n, CHUNK_SIZE))
     scalar_e = np.ndim(e) == 0
-    for start in range(0, n, _CHUNK):
-        stop = min(start + _CHUNK, n)
+    for start in range(0, n, CHUNK_SIZE):
+        stop = min(start + CHUNK_SIZE, n)
         elliptic_sincos_into(
             M[start:stop],
             e if scalar_e else e[start:stop],
@@ -210,7 +202,7 @@ def _markley_chunk(M, e, E, bufs, mask, s_out, c_out) -> None:
     twopik *= _TWO_PI
     np.subtract(M, twopik, out=m)
     np.abs(m, out=x)
-    # Starter, Markley (1995) eqs. (20), (5), (9)-(11), (15)-(16):
+    # Markley's (1995) cubic starter:
     one_minus_e = b4
     np.subtract(1.0, e, out=one_minus_e)
     alpha = b5
@@ -278,7 +270,7 @@ def _markley_chunk(M, e, E, bufs, mask, s_out, c_out) -> None:
         np.subtract(1.0, cs, out=cs)
         cs *= y
         np.copyto(c, cs, where=mask)
-    # Fifth-order correction, Markley (1995) eqs. (21)-(29), written with D = -delta so that
+    # Markley's (1995) fifth-order correction, written with D = -delta so that
     # E = E1 - D5. With f = E1 - e sin E1 - M: f1 = f', hs = f''/2, sc = f'''/6, and the
     # fourth derivative is -e sin E1 = -2 hs.
     hs = b5
@@ -338,32 +330,6 @@ def _markley_chunk(M, e, E, bufs, mask, s_out, c_out) -> None:
     c_out += d2
 
 
-def _x_minus_sin_or_sinh_x(x: np.ndarray, sign: float) -> np.ndarray:
-    """x - sin x (sign = -1) or sinh x - x (sign = +1) by the Taylor series, |x| < 2.
-
-    Sum of sign^k x^(2k+3) / (2k+3)!, Horner from the top term; truncation < 1e-19 |x|^3.
-    """
-    x2 = x * x
-    series = np.ones_like(x)
-    for k in range(12, 0, -1):
-        series = 1.0 + sign * series * x2 / ((2 * k + 2) * (2 * k + 3))
-    return series * x * x2 / 6.0
-
-
-def _sinh_minus_x(H: np.ndarray) -> np.ndarray:
-    """sinh H - H without cancellation: series for |H| < 2, direct beyond."""
-    H = np.asarray(H, dtype=float)
-    with np.errstate(over="ignore"):
-        direct = np.sinh(H) - H
-    return np.where(np.abs(H) < 2.0, _x_minus_sin_or_sinh_x(H, 1.0), direct)
-
-
-def x_minus_sin_x(E: ArrayLike) -> np.ndarray:
-    """E - sin E without cancellation (rad): series for |E| < 2, direct beyond."""
-    E = np.asarray(E, dtype=float)
-    return np.where(np.abs(E) < 2.0, _x_minus_sin_or_sinh_x(E, -1.0), E - np.sin(E))
-
-
 def _refine_near_parabolic(M: np.ndarray, e, E: np.ndarray) -> None:
     """Restore relative accuracy where e > 0.99 and |E| < 1 (in place).
 
@@ -391,36 +357,3 @@ def _refine_near_parabolic(M: np.ndarray, e, E: np.ndarray) -> None:
         f1 = (1.0 - ee) + 2.0 * ee * np.sin(0.5 * Er) ** 2
         Er = Er - f0 / f1
     E[idx] = Er + twopik
-
-
-def _hyperbolic(M: np.ndarray, e: np.ndarray, max_steps: int = 12) -> np.ndarray:
-    """e sinh H - H = M for flat arrays with every e > 1 (method in the module docstring)."""
-    x = np.abs(M)
-    em1 = e - 1.0
-    # Cubic upper bound: (e - 1) H + e H^3 / 6 = x, i.e. H^3 + p H = q with p, q >= 0;
-    # Cardano's root written without cancellation: H = q / (w^2 + p/3 + (p / 3w)^2).
-    p = 6.0 * em1 / e
-    q = 6.0 * x / e
-    w = np.cbrt(0.5 * q + np.sqrt(0.25 * q * q + p**3 / 27.0))
-    with np.errstate(divide="ignore", invalid="ignore"):
-        h_cubic = q / (w * w + p / 3.0 + (p / (3.0 * w)) ** 2)
-    h_cubic = np.where(x == 0.0, 0.0, h_cubic)
-    H = np.minimum(h_cubic, np.log(2.0 * x / e + 1.8))  # Danby (1988) starter
-    active = np.arange(x.size)
-    for _ in range(max_steps):
-        if active.size == 0:
-            break
-        h, ee, xx, em = H[active], e[active], x[active], em1[active]
-        with np.errstate(over="ignore", invalid="ignore"):
-            sh = np.sinh(h)
-            f0 = em * sh + _sinh_minus_x(h) - xx
-            hs = 0.5 * ee * sh  # f''/2 = e sinh H / 2
-            f1 = em + 2.0 * ee * np.sinh(0.5 * h) ** 2  # f' = e cosh H - 1, no cancellation
-            sc = (f1 + 1.0) / 6.0  # f'''/6 = e cosh H / 6
-            d3 = f0 / (f1 - f0 * hs / f1)
-            d4 = f0 / (f1 + d3 * (d3 * sc - hs))
-            d5 = f0 / (f1 + d4 * (d4 * (sc - d4 * hs / 12.0) - hs))
-        H[active] = h - d5
-        done = ~(np.abs(d5) > 4.0 * np.finfo(float).eps * np.maximum(h, 1e-300))
-        active = active[~done]
-    return np.copysign(H, M)

@@ -28,6 +28,7 @@ at one time each give (N, 3); N states at M common times need S = (N, 1) and T =
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -97,7 +98,11 @@ def propagate_two_body(
         r0v_flat = np.broadcast_to(r0v, shape + (3,)).reshape(size, 3)
         v0v_flat = np.broadcast_to(v0v, shape + (3,)).reshape(size, 3)
     fast_flat = np.broadcast_to(fast, shape).ravel()
-    for fn, mask in ((_elliptic_fg, fast_flat), (_universal, ~fast_flat)):
+    methods: tuple[tuple[Callable[..., None], np.ndarray], ...] = (
+        (_elliptic_fg, fast_flat),
+        (_universal, ~fast_flat),
+    )
+    for fn, mask in methods:
         if not mask.any():
             continue
         if mask.all():
