@@ -39,6 +39,8 @@ if not (TEMPLATES_DIR / "orbitrecord").is_dir():  # installed as a wheel: packag
     TEMPLATES_DIR = Path(_templates.__file__).resolve().parent
 
 RESULT_MIME = "application/vnd.orbitledger.result+json"
+WIDGET_MIME = "application/vnd.jupyter.widget-view+json"
+NOTE_MIME = "application/vnd.orbitledger.note+json"  # our own placeholder for a dropped output
 
 # Tags and attributes kept from user HTML (tables from pandas, simple text markup).
 _TAGS = sorted(
@@ -126,6 +128,10 @@ def prepare_outputs(nb: Any) -> Any:
                 output.setdefault("metadata", {})["orbitledger_figure_number"] = number
             elif RESULT_MIME in data:
                 output["data"] = {RESULT_MIME: data[RESULT_MIME]}
+            elif WIDGET_MIME in data:
+                output["data"] = {
+                    NOTE_MIME: "an interactive widget: live in the notebook, not part of the record"
+                }
             elif any(m in data for m in _DROP_MIMES):
                 continue  # BokehJS loader or live view: the record embeds its own copy
             elif output.get("output_type") in ("display_data", "execute_result") and not data:

@@ -128,7 +128,8 @@ def atomic_write_once(path: Path, data: bytes) -> None:
     """
     path.parent.mkdir(parents=True, exist_ok=True)
     tmp = path.parent / f".tmp-{path.name}-{os.getpid()}-{time.monotonic_ns()}"
-    fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o644)
+    # Read-only from the start (the open descriptor can still write): write-once on disk too.
+    fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o444)
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)

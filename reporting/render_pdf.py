@@ -132,9 +132,7 @@ def _print(html: str, record: dict[str, Any]) -> bytes:
             page.goto(page_file.as_uri(), wait_until="load")
             page.emulate_media(media="print")
             wait_for_figures(page)
-            page.evaluate(
-                f"window.orbitledgerFitFigures && window.orbitledgerFitFigures({_PRINT_WIDTH_PX})"
-            )
+            page.evaluate(f"window.orbitledgerPrepareForPrint({_PRINT_WIDTH_PX})")
             return page.pdf(
                 format="A4",
                 print_background=True,
@@ -149,6 +147,9 @@ def _print(html: str, record: dict[str, Any]) -> bytes:
 def attach(pdf: bytes, record: dict[str, Any], notebook: bytes) -> bytes:
     """The PDF with metadata and attachments: record JSON, executed notebook, case files."""
     from pypdf import PdfReader, PdfWriter
+
+    # Chromium's PDFs make pypdf warn about the trailer's object count: harmless, not for users.
+    logging.getLogger("pypdf").setLevel(logging.ERROR)
 
     writer = PdfWriter(clone_from=PdfReader(io.BytesIO(pdf)))
     rev = record.get("revision")

@@ -29,13 +29,26 @@
   }).catch(function (err) {
     body.dataset.figures = "failed: " + err;
   });
-  /* Fit wide figures to the printed page width (the PDF printer calls this). */
-  window.orbitledgerFitFigures = function (widthPx) {
-    document.querySelectorAll(".figure-host").forEach(function (host) {
-      var inner = host.firstElementChild;
-      if (!inner) { return; }
-      var w = inner.getBoundingClientRect().width;
-      if (w > widthPx) { host.style.zoom = String(widthPx / w); }
-    });
+  /* For print: no toolbars (buttons mean nothing on paper), wide figures fitted to the
+     page width; resolves once the figures have been drawn again. */
+  window.orbitledgerPrepareForPrint = function (widthPx) {
+    if (window.Bokeh && window.Bokeh.documents) {
+      window.Bokeh.documents.forEach(function (doc) {
+        doc.all_models.forEach(function (model) {
+          if ("toolbar_location" in model && model.toolbar_location !== null) {
+            model.toolbar_location = null;
+          }
+        });
+      });
+    }
+    return painted().then(function () {
+      document.querySelectorAll(".figure-host").forEach(function (host) {
+        var inner = host.firstElementChild;
+        if (!inner) { return; }
+        var w = inner.getBoundingClientRect().width;
+        if (w > widthPx) { host.style.zoom = String(widthPx / w); }
+      });
+      return painted();
+    }).then(function () { return true; });
   };
 })();
