@@ -1,1 +1,34 @@
-"""Trade studies: parameter sweeps, Monte Carlo dispersions, candidate tables."""
+"""Trade studies: parameter sweeps, Monte Carlo dispersions, criteria and candidate tables.
+
+``sweep(case, {"orbit.altitude_km": "500:600:10"}, metrics=["orbit", "contacts"])`` and
+``disperse(case, {"orbit.altitude_km": Normal(2.0)}, samples=1000, seed=7)`` return pandas
+DataFrames (inputs named by their case-file paths, metrics with their units in their names);
+``scheduler=`` runs the per-case metrics on a Dask cluster with identical results.
+``apply_criteria`` marks each case pass/fail with its reasons; ``rank_candidates`` ranks the
+passing ones; ``candidates_to_cases`` turns them into cases for the widgets' trade view.
+See docs/trade.md.
+"""
+
+from .dispersion import Normal, Uniform, disperse, draw_samples, parse_disperse
+from .evaluate import estimate_bytes, evaluate_cases
+from .metrics import CASE_GROUPS, METRIC_GROUPS, VECTOR_GROUPS, repeat_track_metrics
+from .sweep import grid, parse_values, parse_vary, sweep, sweep_inputs
+
+__all__ = [
+    "CASE_GROUPS",
+    "METRIC_GROUPS",
+    "VECTOR_GROUPS",
+    "Normal",
+    "Uniform",
+    "disperse",
+    "draw_samples",
+    "estimate_bytes",
+    "evaluate_cases",
+    "grid",
+    "parse_disperse",
+    "parse_values",
+    "parse_vary",
+    "repeat_track_metrics",
+    "sweep",
+    "sweep_inputs",
+]
