@@ -182,3 +182,11 @@ def test_state_elements_state_round_trip(rmag, rdir, vdir, speed, flat):
     v = speed * math.sqrt(EARTH.mu_km3_s2 / rmag) * vd / np.linalg.norm(vd)
     r2, v2 = elements_to_state(state_to_elements(r, v))
     assert _rel_err(r2, r) < 1e-12 and _rel_err(v2, v) < 1e-12
+
+
+def test_mean_anomaly_helper():
+    # Curtis 3rd ed., Example 3.1: theta = 120 deg on e = 0.37255 -> Me = 1.3601 rad (5 digits).
+    e = (21000.0 - 9600.0) / (21000.0 + 9600.0)
+    el = Elements(15300.0, e, 0.0, 0.0, 0.0, 120.0)
+    assert abs(math.radians(el.mean_anomaly_deg) - 1.3601) < 1e-4
+    assert 0.0 <= Elements(15300.0, e, 0.0, 0.0, 0.0, 350.0).mean_anomaly_deg < 360.0
