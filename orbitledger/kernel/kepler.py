@@ -259,17 +259,14 @@ def _markley_chunk(M, e, E, bufs, mask, s_out, c_out) -> None:
     np.copysign(c, y, out=c)
     np.abs(y, out=b8)
     np.less(b8, _COS_SERIES_BAND_RAD, out=mask)
-    if mask.any():
-        y2, cs = b8, b9  # cos E1 = sin y = y (1 - y^2/6 (1 - y^2/20 (1 - y^2/42 (1 - y^2/72))))
-        np.multiply(y, y, out=y2)
-        np.multiply(y2, 1.0 / 72.0, out=cs)
+    near = np.flatnonzero(mask)  # a few per cent of the elements: work on them alone
+    if near.size:
+        yn = y[near]  # cos E1 = sin y = y (1 - y^2/6 (1 - y^2/20 (1 - y^2/42 (1 - y^2/72))))
+        y2 = yn * yn
+        cs = y2 * (1.0 / 72.0)
         for divisor in (42.0, 20.0, 6.0):
-            np.subtract(1.0, cs, out=cs)
-            cs *= y2
-            cs *= 1.0 / divisor
-        np.subtract(1.0, cs, out=cs)
-        cs *= y
-        np.copyto(c, cs, where=mask)
+            cs = (1.0 - cs) * y2 * (1.0 / divisor)
+        c[near] = (1.0 - cs) * yn
     # Markley's (1995) fifth-order correction, written with D = -delta so that
     # E = E1 - D5. With f = E1 - e sin E1 - M: f1 = f', hs = f''/2, sc = f'''/6, and the
     # fourth derivative is -e sin E1 = -2 hs.
