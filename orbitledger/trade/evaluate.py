@@ -39,6 +39,7 @@ from .metrics import (
 __all__ = [
     "CaseChunk",
     "as_case",
+    "case_changes",
     "check_extremes",
     "estimate_bytes",
     "evaluate_cases",
@@ -109,6 +110,13 @@ def refuse_if_too_large(
 
 def _plain(value: float, integer: bool) -> float | int:
     return int(round(value)) if integer and float(value).is_integer() else float(value)
+
+
+def case_changes(base: Any, row: Mapping[str, float]) -> dict[str, float | int]:
+    """``{path: value}`` for ``Case.with_changes``: integer fields of the case get integers."""
+    from .sweep import check_input_path
+
+    return {p: _plain(float(v), isinstance(check_input_path(base, p), int)) for p, v in row.items()}
 
 
 def check_extremes(base: Any, inputs: Mapping[str, np.ndarray]) -> None:

@@ -139,7 +139,7 @@ class DaskRunner:
         next_out = 0
         done = 0
         try:
-            for future in as_completed(futures):
+            for future in as_completed(futures, loop=self.client.loop):
                 k = index[future.key]
                 results[k] = future.result()
                 ready.add(k)
