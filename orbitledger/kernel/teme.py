@@ -16,10 +16,11 @@ locator s' (below 0.1 mas for decades), and TIRS -> GCRS is C^T R3(-ERA) (IERS C
 
 Polar motion drops out (TEME -> ITRF -> GCRF applies W and then W^T), and UT1 nearly does too:
 ERA and GMST82 both follow UT1, and their difference changes by 1e-10 rad per second of dUT1.
-GMST82 is ERFA ``gmst82`` (Aoki et al. 1982). The other route, through the true-of-date frame
-with the IAU 2006/2000A equation of the equinoxes (r_TEME = R3(Eq_eq) NPB r_GCRS; ERFA
-``pnm06a``, ``ee06a``), differs from this one by GMST82 - GMST06, about 3 mas in 2004 (0.1 m in
-low orbit); tests/test_teme.py measures it.
+GMST82 is ERFA ``gmst82`` (Aoki et al. 1982), the angle SGP4 itself uses (``gstime``), so
+this is the faithful route. The other route, through the true-of-date frame with the IAU
+2006/2000A equation of the equinoxes (r_TEME = R3(Eq_eq) NPB r_GCRS; ERFA ``pnm06a``,
+``ee06a``), differs from it by GMST82 - GMST06: 2 mas in 2004 (0.1 m at LEO), growing away
+from that year to about 50 mas (3 m) by 2030; tests/test_teme.py measures it.
 
 GCRF is taken equal to GCRS (geocentric, ICRS axes; the celestial pole offsets dX, dY of IERS
 Bulletin A, a few 0.1 mas, are not applied), as in ``frames``. Velocities rotate with the same
