@@ -14,6 +14,7 @@ to a folder, the JupyterLab run also writes the editor screenshots used in docs/
 from __future__ import annotations
 
 import io
+import json
 import logging
 import os
 import secrets
@@ -43,6 +44,18 @@ def _free_port() -> int:
         return s.getsockname()[1]
 
 
+def _settings(folder: Path) -> None:
+    """Front-end settings for a test run: every cell kept in the page (JupyterLab 4 detaches
+    cells scrolled out of view, and the test reads the editor's output) and no news prompt."""
+    for name, value in (
+        ("@jupyterlab/notebook-extension/tracker", {"windowingMode": "none"}),
+        ("@jupyterlab/apputils-extension/notification", {"fetchNews": "false"}),
+    ):
+        path = folder / f"{name}.jupyterlab-settings"
+        path.parent.mkdir(parents=True, exist_ok=True)
+        path.write_text(json.dumps(value))
+
+
 class Server:
     """A Jupyter front-end server of our own (lab or notebook), stopped on exit."""
 
@@ -56,6 +69,11 @@ class Server:
             JUPYTER_CONFIG_DIR=str(home / "config"),
             JUPYTER_PLATFORM_DIRS="1",
         )
+        extra = []
+        if os.geteuid() == 0:
+            log.warning("running as root: the Jupyter server is started with --allow-root")
+            extra.append("--allow-root")
+        _settings(home / "settings")
         self.log_path = home / f"{app}.log"
         self._log = open(self.log_path, "wb")  # noqa: SIM115 - closed in stop()
         self.proc = subprocess.Popen(
@@ -70,6 +88,7 @@ class Server:
                 f"--ServerApp.port={self.port}",
                 f"--ServerApp.root_dir={root}",
                 "--ServerApp.port_retries=0",
+                *extra,
             ],
             stdout=self._log,
             stderr=subprocess.STDOUT,
@@ -124,18 +143,37 @@ def _artefact(tmp_path: Path, name: str, png: bytes) -> Path:
 
 
 def _launch(playwright, tmp_path: Path):
+    """Headless Chromium with a fresh profile (playwright takes the profile folder as
+    ``user_data_dir``, its form of ``--user-data-dir``)."""
     args = [
         "--disable-gpu",
         "--disable-background-networking",
         "--disable-component-update",
         "--disable-sync",
         "--no-first-run",
-        f"--user-data-dir={tmp_path / 'chromium'}",
     ]
     if os.geteuid() == 0:
         log.warning("running as root: Chromium started with --no-sandbox (CI or container)")
         args.insert(0, "--no-sandbox")
-    return playwright.chromium.launch(executable_path=CHROMIUM, args=args)
+    return playwright.chromium.launch_persistent_context(
+        str(tmp_path / "chromium-profile"),
+        executable_path=CHROMIUM,
+        args=args,
+        headless=True,
+        viewport={"width": 1500, "height": 1000},
+    )
+
+
+def _accept_kernel_dialog(page) -> None:
+    """Accept the kernel-selection dialog (the notebook's own kernelspec, preselected) if the
+    front end shows one while its session starts."""
+    accept = page.locator(".jp-Dialog .jp-mod-accept")
+    try:
+        accept.first.wait_for(timeout=3_000)
+    except Exception:  # no dialog: the usual case
+        return
+    log.warning("kernel dialog shown: accepting the notebook's kernel")
+    accept.first.click()
 
 
 def _run_all(page) -> None:
@@ -172,17 +210,23 @@ def test_edit_in_the_browser(app: str, path: str, tmp_path: Path) -> None:
         with sync_api.sync_playwright() as p:
             browser = _launch(p, tmp_path)
             try:
-                page = browser.new_page(viewport={"width": 1500, "height": 1000})
+                page = browser.pages[0] if browser.pages else browser.new_page()
                 page.goto(server.url(path))
                 page.locator(".jp-Notebook").first.wait_for(timeout=60_000)
-                page.locator(
-                    ".jp-Notebook-ExecutionIndicator[data-status='idle'], "
-                    ".jp-KernelStatus-success, .jp-Toolbar-kernelStatus"
-                ).first.wait_for(timeout=60_000)
-                time.sleep(1.0)
-                _run_all(page)
+                idle = page.locator(".jp-Notebook-ExecutionIndicator[data-status='idle']")
+                idle.first.wait_for(state="attached", timeout=60_000)
                 editor = page.locator(".ol-editor").first
-                editor.wait_for(timeout=90_000)
+                for attempt in range(3):  # a Run All sent while the session connects is lost
+                    _accept_kernel_dialog(page)
+                    _run_all(page)
+                    _accept_kernel_dialog(page)
+                    try:
+                        editor.wait_for(timeout=60_000)
+                        break
+                    except sync_api.TimeoutError:
+                        log.warning("no editor after Run All (attempt %d)", attempt + 1)
+                else:
+                    raise AssertionError("the editor did not appear after three Run All")
                 figure = editor.locator(".ol-figure canvas").first
                 figure.wait_for(timeout=60_000)
                 before_text = _periapsis_text(page)
@@ -213,6 +257,9 @@ def test_edit_in_the_browser(app: str, path: str, tmp_path: Path) -> None:
                     page.locator(".lm-Menu-itemLabel", has_text="JupyterLab Dark").first.click()
                     time.sleep(2.0)
                     Path(docs, "editor-dark.png").write_bytes(editor.screenshot())
+            except Exception:
+                _artefact(tmp_path, f"{app}-failure.png", page.screenshot(full_page=True))
+                raise
             finally:
                 browser.close()
     finally:
