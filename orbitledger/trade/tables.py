@@ -1,0 +1,82 @@
+"""A study's table on disk: CSV or Parquet, with its attributes (seed, units, base case).
+
+``save_table(frame, "study.parquet")`` keeps ``frame.attrs`` in the Parquet file's metadata
+(pandas stores them there); ``save_table(frame, "study.csv")`` writes the attributes beside
+the CSV as ``study.csv.attrs.json``. Both are written atomically (a temporary file in the same
+folder, then renamed), so a failed or refused run leaves any earlier file as it was.
+``load_table`` reads either back with its attributes.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import tempfile
+from pathlib import Path
+from typing import Any
+
+from ..kernel.errors import InputError
+
+__all__ = ["TABLE_SUFFIXES", "check_table_path", "load_table", "save_table"]
+
+TABLE_SUFFIXES = (".csv", ".parquet")
+
+
+def check_table_path(path: str | os.PathLike, *, field: str = "--out") -> Path:
+    """The output path, checked before any work: a known suffix, an existing folder."""
+    out = Path(path)
+    if out.suffix.lower() not in TABLE_SUFFIXES:
+        raise InputError(field, str(path), "must end in .csv or .parquet")
+    folder = out.parent if str(out.parent) else Path(".")
+    if not folder.is_dir():
+        raise InputError(field, str(path), f"the folder {str(folder)!r} does not exist")
+    if out.is_dir():
+        raise InputError(field, str(path), "is a folder")
+    return out
+
+
+def _replace_atomically(path: Path, write) -> None:
+    handle, temporary = tempfile.mkstemp(dir=path.parent or ".", prefix=f".{path.name}.")
+    os.close(handle)
+    try:
+        write(temporary)
+        with open(temporary, "rb") as stream:
+            os.fsync(stream.fileno())
+        os.replace(temporary, path)
+    except BaseException:
+        if os.path.exists(temporary):
+            os.unlink(temporary)
+        raise
+
+
+def _json_attrs(attrs: dict[str, Any]) -> str:
+    return json.dumps(attrs, indent=1, sort_keys=True, default=float)
+
+
+def save_table(frame: Any, path: str | os.PathLike) -> Path:
+    """Write ``frame`` (and its attrs) to ``path`` (.csv or .parquet), atomically."""
+    out = check_table_path(path, field="path")
+    if out.suffix.lower() == ".parquet":
+        _replace_atomically(out, lambda name: frame.to_parquet(name, index=False))
+    else:
+        side = out.with_name(out.name + ".attrs.json")
+        _replace_atomically(out, lambda name: frame.to_csv(name, index=False))
+        text = _json_attrs(dict(frame.attrs))
+        _replace_atomically(side, lambda name: Path(name).write_text(text, encoding="utf-8"))
+    return out
+
+
+def load_table(path: str | os.PathLike) -> Any:
+    """Read a table written by :func:`save_table`, attributes included."""
+    import pandas as pd
+
+    source = Path(path)
+    if source.suffix.lower() == ".parquet":
+        return pd.read_parquet(source)
+    frame = pd.read_csv(source, keep_default_na=True)
+    if "error" in frame.columns:
+        frame["error"] = frame["error"].fillna("").astype(str)
+    side = source.with_name(source.name + ".attrs.json")
+    if side.exists():
+        frame.attrs.update(json.loads(side.read_text(encoding="utf-8")))
+    return frame
