@@ -24,6 +24,7 @@ VERB_MODULES = [
     "orbitledger.cli.report_verbs",
     "orbitledger.cli.environment_verbs",
     "orbitledger.cli.exchange_verbs",
+    "orbitledger.cli.trade_verbs",
 ]
 
 
