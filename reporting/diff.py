@@ -74,7 +74,7 @@ def diff_records(old: dict[str, Any], new: dict[str, Any]) -> list[Change]:
                 changes.append(Change("inputs", case, path, a.get(path), b.get(path)))
     for where, get in (("results", _named), ("standard", _standard)):
         a, b = get(old), get(new)
-        for name in sorted(set(a) | set(b), key=lambda n: (n not in a, n)):
+        for name in list(dict.fromkeys([*b, *a])):  # record order: the panel's order
             va = a[name]["value"] if name in a else None
             vb = b[name]["value"] if name in b else None
             if va != vb:
@@ -91,22 +91,35 @@ def _show(value: Any) -> str:
     return json.dumps(value, ensure_ascii=False) if not isinstance(value, str) else value
 
 
-def summary_lines(changes: list[Change], limit: int = 8) -> list[str]:
-    """A few plain lines saying what changed (for a revision-history entry)."""
+def _line(c: Change) -> str:
+    label = f"{c.item}: {c.path}" if c.path else f"result {c.item}"
+    unit = f" {c.unit}" if c.unit else ""
+    return f"{label} {c.kind}: {_show(c.old)} -> {_show(c.new)}{unit}"
+
+
+def summary_lines(changes: list[Change], limit: int = 6) -> list[str]:
+    """A few plain lines saying what changed (for a revision-history entry).
+
+    Every changed input and named result (up to ``limit`` of each), then one line per case
+    for its standard results: how many changed, and the first few in the record's order.
+    """
     if not changes:
         return ["no change in inputs or results"]
-    lines = []
-    inputs = [c for c in changes if c.where == "inputs"]
-    results = [c for c in changes if c.where != "inputs"]
-    for c in inputs + results:
-        label = f"{c.item}: {c.path}" if c.path else f"result {c.item}"
-        unit = f" {c.unit}" if c.unit else ""
-        lines.append(f"{label} {c.kind}: {_show(c.old)} -> {_show(c.new)}{unit}")
-    if len(lines) > limit:
-        rest = len(lines) - limit
-        lines = lines[:limit] + [
-            f"... and {rest} more ({len(inputs)} inputs, {len(results)} results)"
-        ]
+    lines: list[str] = []
+    for where, noun in (("inputs", "input"), ("results", "named result")):
+        rows = [c for c in changes if c.where == where]
+        lines += [_line(c) for c in rows[:limit]]
+        if len(rows) > limit:
+            lines.append(f"... and {len(rows) - limit} more {noun} changes")
+    by_case: dict[str, list[Change]] = {}
+    for c in changes:
+        if c.where == "standard":
+            case, _, name = c.item.partition(": ")
+            by_case.setdefault(case, []).append(Change(c.where, name, "", c.old, c.new, c.unit))
+    for case, rows in by_case.items():
+        shown = "; ".join(_line(c).removeprefix("result ") for c in rows[:3])
+        more = f"; ... ({len(rows) - 3} more)" if len(rows) > 3 else ""
+        lines.append(f"standard results of {case}: {len(rows)} changed: {shown}{more}")
     return lines
 
 

@@ -128,6 +128,8 @@ def prepare_outputs(nb: Any) -> Any:
                 output.setdefault("metadata", {})["orbitledger_figure_number"] = number
             elif RESULT_MIME in data:
                 output["data"] = {RESULT_MIME: data[RESULT_MIME]}
+            elif "application/javascript" in data and len(set(data) - {"text/plain"}) == 1:
+                output["data"] = {NOTE_MIME: "a JavaScript output is not carried into the record"}
             elif WIDGET_MIME in data:
                 output["data"] = {
                     NOTE_MIME: "an interactive widget: live in the notebook, not part of the record"
