@@ -77,9 +77,9 @@ def _seconds(a_utc: str, b_utc: str) -> float:
 
 
 def _segment(meta: list[KvnLine], data: list[KvnLine], comments: list[str]) -> OemSegment:
-    start = meta[0].number
+    start, stop_line = meta[0].number, meta[-1].number  # META_START and META_STOP
     values: dict[str, KvnLine] = {}
-    for line in meta[1:]:
+    for line in meta[1:-1]:
         if line.keyword == "COMMENT":
             continue
         if line.keyword not in _META + _META_OPTIONAL:
@@ -87,7 +87,6 @@ def _segment(meta: list[KvnLine], data: list[KvnLine], comments: list[str]) -> O
         if line.keyword in values:
             raise InputError(where(line), line.value, "given twice in this metadata block")
         values[line.keyword] = line
-    stop_line = meta[-1].number
     for key in _META:
         if key not in values:
             raise InputError(
@@ -200,7 +199,7 @@ def parse_oem(text: str) -> Oem:
                     raise InputError(where(line), line.value, "a data line was expected here")
                 data.append(line)
             k += 1
-        segments.append(_segment(meta[:-1], data, notes))
+        segments.append(_segment(meta, data, notes))
     version = header["CCSDS_OEM_VERS"].value
     if version not in ("1.0", "2.0", "3.0"):
         raise InputError(where(header["CCSDS_OEM_VERS"]), version, "must be 1.0, 2.0 or 3.0")

@@ -147,7 +147,8 @@ def _missing(key: str, at_line: int, block: str) -> InputError:
     return InputError(
         where(at_line, key),
         InputError.MISSING,  # type: ignore[attr-defined]
-        f"required keyword of the OPM {block} is missing (CCSDS 502.0-B-2, Sec. 3.2)",
+        f"required keyword of the OPM {block} is missing; the {block} ends at line {at_line} "
+        "(CCSDS 502.0-B-2, Sec. 3.2)",
     )
 
 
