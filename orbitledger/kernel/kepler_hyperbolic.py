@@ -35,18 +35,26 @@ def _x_minus_sin_or_sinh_x(x: np.ndarray, sign: float) -> np.ndarray:
     return series * x * x2 / 6.0
 
 
-def sinh_minus_x(H: np.ndarray) -> np.ndarray:
-    """sinh H - H without cancellation: series for |H| < 2, direct beyond."""
-    H = np.asarray(H, dtype=float)
+def _by_size(x: ArrayLike, sign: float, direct) -> np.ndarray:
+    """Series where |x| < 2, ``direct`` elsewhere; each evaluated only where it is used."""
+    x = np.asarray(x, dtype=float)
+    out = np.empty_like(x)
+    small = np.abs(x) < 2.0
+    out[small] = _x_minus_sin_or_sinh_x(x[small], sign)
+    big = ~small
     with np.errstate(over="ignore"):
-        direct = np.sinh(H) - H
-    return np.where(np.abs(H) < 2.0, _x_minus_sin_or_sinh_x(H, 1.0), direct)
+        out[big] = direct(x[big])
+    return out
+
+
+def sinh_minus_x(H: ArrayLike) -> np.ndarray:
+    """sinh H - H without cancellation: series for |H| < 2, direct beyond."""
+    return _by_size(H, 1.0, lambda h: np.sinh(h) - h)
 
 
 def x_minus_sin_x(E: ArrayLike) -> np.ndarray:
     """E - sin E without cancellation (rad): series for |E| < 2, direct beyond."""
-    E = np.asarray(E, dtype=float)
-    return np.where(np.abs(E) < 2.0, _x_minus_sin_or_sinh_x(E, -1.0), E - np.sin(E))
+    return _by_size(E, -1.0, lambda x: x - np.sin(x))
 
 
 def hyperbolic_kepler_residual(H: ArrayLike, e: ArrayLike, mean_anomaly_rad: ArrayLike):

@@ -16,7 +16,9 @@ Two methods, chosen per state:
   Fundamentals of Astrodynamics and Applications, 4th ed. (2013), Algorithm 8 (KEPLER), with
   the Stumpff functions c2, c3 and the Laguerre iteration of B. A. Conway, "An improved
   algorithm due to Laguerre for the solution of Kepler's equation", Celestial Mechanics
-  39:199-211 (1986), which converges from any starting value; elliptic times are first reduced
+  39:199-211 (1986), which converges from any starting value. The start is chi = sqrt(|a|)
+  (E - E0) or sqrt(|a|) (H - H0) from solve_kepler, so Laguerre only polishes (1-2 steps);
+  within 1e-12 of parabolic, Vallado's starting values. Elliptic times are first reduced
   by whole periods. g is formed as (sigma0 chi^2 c2 + r0 chi (1 - z c3)) / sqrt(mu), which is
   equal to dt - chi^3 c3 / sqrt(mu) but free of cancellation.
 
@@ -36,7 +38,8 @@ from numpy.typing import ArrayLike
 from .constants import EARTH
 from .elements import _check_mu, _check_state
 from .errors import InputError
-from .kepler import CHUNK_SIZE, KeplerWorkspace, elliptic_sincos_into
+from .kepler import CHUNK_SIZE, KeplerWorkspace, elliptic_sincos_into, solve_kepler
+from .kepler_hyperbolic import hyperbolic_kepler_residual, x_minus_sin_x
 
 __all__ = ["propagate_two_body", "stumpff_c2_c3", "FAST_PATH_MAX_E"]
 
@@ -207,28 +210,30 @@ def stumpff_c2_c3(z: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
     Algorithm 1, numbering from memory; Curtis 3rd ed., eqs. 3.52).
     """
     z = np.asarray(z, dtype=float)
+    c2 = np.empty_like(z)
+    c3 = np.empty_like(z)
     small = np.abs(z) < 4.0
-    c2s = np.ones_like(z)
-    c3s = np.ones_like(z)
+    zs = z[small]
+    c2s = np.ones_like(zs)
+    c3s = np.ones_like(zs)
     for k in range(16, 0, -1):  # c2 = sum (-z)^k/(2k+2)!, c3 = sum (-z)^k/(2k+3)!
-        c2s = 1.0 - c2s * z / ((2 * k + 1) * (2 * k + 2))
-        c3s = 1.0 - c3s * z / ((2 * k + 2) * (2 * k + 3))
-    c2s *= 0.5
-    c3s *= 1.0 / 6.0
-    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
-        s = np.sqrt(np.abs(z))
-        c2_ell = 2.0 * np.sin(0.5 * s) ** 2 / z
-        c3_ell = (s - np.sin(s)) / s**3
-        c2_hyp = -2.0 * np.sinh(0.5 * s) ** 2 / z
-        c3_hyp = (np.sinh(s) - s) / s**3
-    c2 = np.where(small, c2s, np.where(z > 0.0, c2_ell, c2_hyp))
-    c3 = np.where(small, c3s, np.where(z > 0.0, c3_ell, c3_hyp))
+        c2s = 1.0 - c2s * zs / ((2 * k + 1) * (2 * k + 2))
+        c3s = 1.0 - c3s * zs / ((2 * k + 2) * (2 * k + 3))
+    c2[small] = 0.5 * c2s
+    c3[small] = c3s / 6.0
+    with np.errstate(over="ignore"):
+        for mask, sin_like in ((~small & (z > 0.0), np.sin), (~small & (z < 0.0), np.sinh)):
+            zz = z[mask]
+            s = np.sqrt(np.abs(zz))
+            sign = 1.0 if sin_like is np.sin else -1.0
+            c2[mask] = sign * 2.0 * sin_like(0.5 * s) ** 2 / zz
+            c3[mask] = sign * (s - sin_like(s)) / s**3
     return c2, c3
 
 
 def _universal(r0v, v0v, r0, sigma0, alpha, es0, ec0, dt, mu, r_out, v_out) -> None:
     """Universal-variable Kepler equation by Laguerre-Conway iteration, then f and g."""
-    del es0, ec0
+    del es0
     shape = np.broadcast_shapes(r0.shape, dt.shape)
     r0b, s0b, ab = (np.broadcast_to(x, shape).astype(float) for x in (r0, sigma0, alpha))
     sqrt_mu = math.sqrt(mu)
@@ -237,6 +242,7 @@ def _universal(r0v, v0v, r0, sigma0, alpha, es0, ec0, dt, mu, r_out, v_out) -> N
         period = np.where(ab > 0.0, 2.0 * np.pi / (sqrt_mu * ab * np.sqrt(ab)), np.inf)
         dt_red = np.where(ab > 0.0, dtb - period * np.rint(dtb / period), dtb)
     chi = _initial_chi(r0b, s0b, ab, dt_red, sqrt_mu)
+    _kepler_chi(chi, r0b, s0b, ab, np.broadcast_to(ec0, shape), dt_red, sqrt_mu)
     one_m_ar0 = 1.0 - ab * r0b
     target = sqrt_mu * dt_red
     active = np.flatnonzero(np.ones(shape, dtype=bool).ravel())
@@ -269,6 +275,38 @@ def _universal(r0v, v0v, r0, sigma0, alpha, es0, ec0, dt, mu, r_out, v_out) -> N
     fdot = -sqrt_mu * chi * one_m_zc3 / (r * r0b)
     gdot = 1.0 - chi2c2 / r
     _combine(f, g, fdot, gdot, r0v, v0v, r_out, v_out, np.empty(shape))
+
+
+def _kepler_chi(chi, r0, sigma0, alpha, ec0, dt, sqrt_mu) -> None:
+    """Replace the starting chi, in place, by the one from Kepler's equation where it applies.
+
+    chi = sqrt(a) (E - E0) on ellipses and sqrt(-a) (H - H0) on hyperbolas, with E or H from
+    solve_kepler; the Laguerre iteration then only polishes it (one or two steps instead of
+    five to seven). Orbits within 1e-12 of parabolic keep the generic start.
+    """
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        sa = np.sqrt(np.abs(alpha))
+        es0 = sigma0 * sa  # e sin E0 or e sinh H0
+        ell = alpha * r0 > 1e-12
+        hyp = alpha * r0 < -1e-12
+        for mask, sign in ((ell, 1.0), (hyp, -1.0)):
+            idx = np.flatnonzero(mask)
+            if idx.size == 0:
+                continue
+            s_, c_ = es0.ravel()[idx], ec0.ravel()[idx]
+            e = np.sqrt(np.abs((c_ - s_) * (c_ + s_))) if sign < 0 else np.hypot(s_, c_)
+            e = np.where(e == 1.0, np.nextafter(1.0, 2.0 if sign < 0 else 0.0), e)
+            if sign > 0:
+                x0 = np.arctan2(s_, c_)
+                M0 = (1.0 - e) * np.sin(x0) + x_minus_sin_x(x0)
+            else:
+                x0 = np.arcsinh(s_ / e)
+                M0 = hyperbolic_kepler_residual(x0, e, 0.0)
+            n = sqrt_mu * sa.ravel()[idx] ** 3
+            x = solve_kepler(M0 + n * dt.ravel()[idx], e)
+            guess = (x - x0) / sa.ravel()[idx]
+            ok = np.isfinite(guess)
+            chi.ravel()[idx[ok]] = guess[ok]
 
 
 def _initial_chi(r0, sigma0, alpha, dt, sqrt_mu):
