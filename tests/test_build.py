@@ -112,3 +112,27 @@ def test_revision_two_after_an_edited_case_has_history_and_diff(first_build, cap
     row = next(line for line in diff.splitlines() if "orbit.altitude_km" in line)
     assert row.split()[-2:] == ["560", "*"] and "540" in row
     assert "candidate-a.case.json: period_s" in diff
+
+
+@pytest.mark.slow
+@pytest.mark.browser
+def test_demo_builds_the_example_study_into_html_and_pdf_that_verify(tmp_path, capsys):
+    from orbitledger.reporting.render_pdf import find_browser
+    from orbitledger.reporting.verify import verify_file
+
+    if find_browser() is None:
+        pytest.skip("no Chromium to print the PDF")
+    out = tmp_path / "demo"
+    assert main(["demo", "--out", str(out)]) == 0
+    printed = capsys.readouterr().out
+    html = out / "ledger/records/KES2-ORB-001/r0001/record.html"
+    pdf = out / "ledger/records/KES2-ORB-001/r0001/record.pdf"
+    assert str(html) in printed and str(pdf) in printed
+    for path in (html, pdf):
+        report = verify_file(path)
+        assert report.ok, report.text()
+    record = json.loads((html.parent / "record.json").read_text())
+    assert len(record["inputs"]) == 3 and len(record["figures"]) >= 3
+    assert len(html.read_bytes()) < 3_000_000
+    # A fresh ledger only: the same folder again is refused, nothing overwritten.
+    assert main(["demo", "--out", str(out)]) == 2
