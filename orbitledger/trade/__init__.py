@@ -9,26 +9,41 @@ passing ones; ``candidates_to_cases`` turns them into cases for the widgets' tra
 See docs/trade.md.
 """
 
+from .criteria import (
+    Criterion,
+    apply_criteria,
+    candidates_to_cases,
+    parse_criterion,
+    rank_candidates,
+)
 from .dispersion import Normal, Uniform, disperse, draw_samples, parse_disperse
 from .evaluate import estimate_bytes, evaluate_cases
 from .metrics import CASE_GROUPS, METRIC_GROUPS, VECTOR_GROUPS, repeat_track_metrics
 from .sweep import grid, parse_values, parse_vary, sweep, sweep_inputs
+from .tables import load_table, save_table
 
 __all__ = [
     "CASE_GROUPS",
     "METRIC_GROUPS",
     "VECTOR_GROUPS",
+    "Criterion",
     "Normal",
     "Uniform",
+    "apply_criteria",
+    "candidates_to_cases",
     "disperse",
     "draw_samples",
     "estimate_bytes",
     "evaluate_cases",
     "grid",
+    "load_table",
+    "parse_criterion",
     "parse_disperse",
     "parse_values",
     "parse_vary",
+    "rank_candidates",
     "repeat_track_metrics",
+    "save_table",
     "sweep",
     "sweep_inputs",
 ]

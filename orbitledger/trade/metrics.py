@@ -95,10 +95,20 @@ class MetricSelection:
 
 
 def _probe_case(base: Any, groups: Sequence[str]) -> Any:
-    """The base case with a window of at most an hour: enough to learn result names."""
+    """The base case with a window of one and a half orbits: enough to learn the names of
+    the window groups' results (per-orbit eclipse fractions need one whole orbit)."""
     if not set(groups) & {"eclipses", "contacts"}:
         return base
-    return base.with_changes({"window.duration_s": min(base.window.duration_s, 3600.0)})
+    elements = base.elements()
+    if float(elements.e) < 1.0:
+        period_s = (
+            2.0 * math.pi * math.sqrt(float(elements.a_km) ** 3 / base.body_constants().mu_km3_s2)
+        )
+        duration_s = 1.5 * period_s
+    else:
+        duration_s = 3600.0
+    step_s = min(base.window.step_s, duration_s)
+    return base.with_changes({"window.duration_s": duration_s, "window.step_s": step_s})
 
 
 def _group_columns(base: Any, groups: Sequence[str]) -> dict[str, tuple[str, str]]:
