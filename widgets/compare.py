@@ -99,6 +99,16 @@ def _as_case(item: Any) -> Any:
     return item.case if hasattr(item, "case") and hasattr(item, "save") else item
 
 
+def _as_cases(cases: Any) -> list[Any]:
+    """Cases from a list of cases / case files, or from a trade study's candidate table
+    (``orbitledger.trade.rank_candidates``: a DataFrame recording its base case)."""
+    if "base_case_json" in getattr(cases, "attrs", {}):
+        from orbitledger.trade import candidates_to_cases
+
+        return candidates_to_cases(cases)
+    return [_as_case(c) for c in cases]
+
+
 def _label(case: Any, k: int) -> str:
     title = getattr(getattr(case, "meta", None), "title", "") or f"candidate {k + 1}"
     return title.split(":", 1)[0]
@@ -170,7 +180,7 @@ def trade_table(
     labels: Sequence[str] | None = None,
 ) -> TradeTable:
     """The trade table of ``cases`` (CaseFile or Case objects), without widgets."""
-    plain = [_as_case(c) for c in cases]
+    plain = _as_cases(cases)
     if len(plain) < 2:
         raise ValueError("compare needs at least two candidate cases")
     names = list(labels) if labels is not None else [_label(c, k) for k, c in enumerate(plain)]
@@ -189,7 +199,7 @@ def compare(
     from .casefigures import overlay_figures
 
     load_bokehjs()
-    plain = [_as_case(c) for c in cases]
+    plain = _as_cases(cases)
     table = trade_table(plain, criteria, labels)
     heading = w.HTML(
         '<span class="ol-brand">orbitledger \u00b7 trade</span> '
