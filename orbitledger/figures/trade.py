@@ -60,7 +60,11 @@ def _column(frame: Any, name: str, argument: str) -> np.ndarray:
 
 def _slice(frame: Any, x: str, y: str, fixed: Mapping[str, float] | None) -> Any:
     """The rows of ``frame`` with every other input at its ``fixed`` value."""
-    others = [p for p in frame.attrs.get("inputs", []) if p not in (x, y)]
+    inputs = list(frame.attrs.get("inputs", []))
+    for argument, path in (("x", x), ("y", y)):
+        if path not in inputs:
+            raise InputError(argument, path, f"is not a swept input; the inputs: {inputs}")
+    others = [p for p in inputs if p not in (x, y)]
     fixed = dict(fixed or {})
     unknown = [p for p in fixed if p not in others]
     if unknown:
