@@ -183,7 +183,39 @@ def _run_all(page) -> None:
 
 def _periapsis_text(page) -> str:
     cell = page.locator('.ol-editor tr[data-result="periapsis_alt_km"] td.ol-num').first
-    return cell.inner_text().replace("\u2009", "").strip()
+    return cell.inner_text().replace("\u2009", "").replace("\u2212", "-").strip()
+
+
+def _doc_screenshots(page, editor, folder: Path) -> None:
+    """The screenshots of docs/widgets.md: the form with its results, and the figures, in
+    JupyterLab's light theme, then the form in the dark theme."""
+    folder.mkdir(parents=True, exist_ok=True)
+    page.set_viewport_size({"width": 1500, "height": 6000})  # the whole editor in view
+    editor.evaluate("e => e.scrollIntoView({block: 'start'})")
+    page.evaluate("document.activeElement && document.activeElement.blur()")
+    time.sleep(2.0)
+
+    def form_shot(name: str) -> None:
+        top = editor.bounding_box()
+        tables = editor.locator(".ol-table").first.bounding_box()
+        clip = {
+            "x": top["x"],
+            "y": top["y"],
+            "width": top["width"],
+            "height": tables["y"] - top["y"],
+        }
+        (folder / name).write_bytes(page.screenshot(clip=clip))
+
+    form_shot("editor-light.png")
+    (folder / "editor-tables-light.png").write_bytes(editor.locator(".ol-table").first.screenshot())
+    (folder / "editor-figures-light.png").write_bytes(
+        editor.locator(".ol-figures").first.screenshot()
+    )
+    page.locator(".lm-MenuBar-itemLabel", has_text="Settings").first.click()
+    page.locator(".lm-Menu-itemLabel", has_text="Theme").first.hover()
+    page.locator(".lm-Menu-itemLabel", has_text="JupyterLab Dark").first.click()
+    time.sleep(3.0)
+    form_shot("editor-dark.png")
 
 
 def _wait_for(predicate, timeout_s: float, what: str) -> None:
@@ -250,13 +282,7 @@ def test_edit_in_the_browser(app: str, path: str, tmp_path: Path) -> None:
                 _artefact(tmp_path, f"{app}-editor-after.png", shot)
                 docs = os.environ.get("ORBITLEDGER_SCREENSHOTS")
                 if docs and app == "lab":
-                    Path(docs).mkdir(parents=True, exist_ok=True)
-                    Path(docs, "editor-light.png").write_bytes(shot)
-                    page.locator(".lm-MenuBar-itemLabel", has_text="Settings").first.click()
-                    page.locator(".lm-Menu-itemLabel", has_text="Theme").first.hover()
-                    page.locator(".lm-Menu-itemLabel", has_text="JupyterLab Dark").first.click()
-                    time.sleep(2.0)
-                    Path(docs, "editor-dark.png").write_bytes(editor.screenshot())
+                    _doc_screenshots(page, editor, Path(docs))
             except Exception:
                 _artefact(tmp_path, f"{app}-failure.png", page.screenshot(full_page=True))
                 raise

@@ -82,6 +82,8 @@ def test_figures_update_in_place(case_path: Path) -> None:
         if any(not np.array_equal(np.asarray(s.data[c]), before[k][c]) for c in s.data)
     ]
     assert changed  # the conic's columns follow the new eccentricity
+    # Every column drawn before is still there (colours, markers): nothing lost on screen.
+    assert all(set(s.data) == set(before[k]) for k, s in sources.items())
     # The drawn periapsis distance follows r_p = a (1 - e) (Vallado Eq. 2-57) to 1 m.
     conic = sources[next(k for k in sources if k.startswith("conic"))].data
     r = np.hypot(np.asarray(conic["x_km"]), np.asarray(conic["y_km"]))

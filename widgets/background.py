@@ -86,7 +86,11 @@ class BackgroundJob:
         self.status.add_class("ol-note")
         self.run_button.on_click(lambda _b: self.start())
         self.cancel_button.on_click(lambda _b: self.cancel())
-        self.widget = w.HBox([self.run_button, self.bar, self.cancel_button, self.status])
+        self.label = w.HTML(f"<b>{_escape(title)}</b>", layout=w.Layout(width="auto"))
+        self.label.add_class("ol-note")
+        self.widget = w.HBox(
+            [self.label, self.run_button, self.bar, self.cancel_button, self.status]
+        )
         self.widget.add_class("ol-job")
 
     @property

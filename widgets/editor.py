@@ -338,14 +338,12 @@ class CaseEditor(w.VBox):
         for key, title, _paths in SECTIONS:
             box = w.VBox([])
             box.add_class("ol-section")
-            box.layout.flex = "1 1 30em"
             self._sections[key] = box
             boxes[key] = (title, box)
         self._section_titles = {key: title for key, title, _ in SECTIONS}
         self.results_panel = ResultsPanel()
         self._warnings = w.HTML("")
         self._warnings.add_class("ol-warn")
-        self.results_panel.widget.layout.flex = "1 1 26em"
         self.stations = StationTable([], self._propose_list)
         self.burns = BurnTable([], self._propose_list)
         self._slow_job = BackgroundJob(
@@ -353,20 +351,27 @@ class CaseEditor(w.VBox):
         )
         if self.window_results:
             self._slow_job.run_button.layout.display = "none"
+        else:
+            self._slow_job.label.layout.display = "none"
         self._figures = [
             LiveFigure(name, build, self._case, data) for name, build, data in figure_builders
         ]
         figure_box = w.HBox([f.widget for f in self._figures])
         figure_box.add_class("ol-figures")
-        left = w.VBox(
-            [self._sections["orbit"], self._sections["epoch"]], layout=w.Layout(flex="1 1 30em")
+        # Two columns: the form on the left, the results (and their background job) on the
+        # right, so an edit and its effect are side by side; they wrap on a narrow page.
+        form = w.VBox(
+            [self._sections[key] for key, _title, _paths in SECTIONS],
+            layout=w.Layout(flex="1 1 27em", min_width="26em"),
         )
-        middle = w.VBox(
-            [self._sections["spacecraft"], self._sections["window"], self._sections["budget"]],
-            layout=w.Layout(flex="1 1 30em"),
-        )
+        self.results_panel.widget.children = [
+            self.results_panel.title,
+            self._slow_job.widget,
+            *self.results_panel.widget.children[1:],
+        ]
+        self.results_panel.widget.layout = w.Layout(flex="1 1 30em", min_width="24em")
         grid = w.HBox(
-            [left, middle, self.results_panel.widget],
+            [form, self.results_panel.widget],
             layout=w.Layout(flex_flow="row wrap", align_items="flex-start"),
         )
         self.children = [
@@ -377,7 +382,6 @@ class CaseEditor(w.VBox):
             grid,
             self.stations.widget,
             self.burns.widget,
-            self._slow_job.widget,
             figure_box,
         ]
 

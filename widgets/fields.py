@@ -46,7 +46,7 @@ _UNIT_SUFFIXES: tuple[tuple[str, str], ...] = (
 # Labels an analyst reads; a name not listed here is shown with its underscores as spaces.
 _LABELS = {
     "a_km": "Semi-major axis",
-    "altitude_km": "Altitude of a",
+    "altitude_km": "Altitude (a \u2212 R)",
     "e": "Eccentricity",
     "i_deg": "Inclination",
     "raan_deg": "RAAN",
@@ -278,8 +278,9 @@ class BoolField(Field):
         super().__init__(path, **kw)
         self.input = w.Checkbox(
             description=self.label,
-            indent=False,
-            layout=w.Layout(width=f"calc({LABEL_WIDTH} + {INPUT_WIDTH})"),
+            indent=True,
+            style={"description_width": LABEL_WIDTH},
+            layout=w.Layout(width=f"calc({LABEL_WIDTH} + {INPUT_WIDTH} + 2em)"),
         )
         self.widget = self._row(self.input)
         self.set_value(value)

@@ -83,6 +83,35 @@ def _data_changed(old: dict[str, Any], new: dict[str, Any]) -> bool:
     return any(not _same_value(old[k], new[k]) for k in new)
 
 
+def _is_text_column(values: Any) -> bool:
+    return (
+        isinstance(values, list | tuple)
+        and bool(values)
+        and all(isinstance(v, str) for v in values)
+    )
+
+
+def _with_styling(screen: dict[str, Any], data: dict[str, Any]) -> dict[str, Any] | None:
+    """``data`` plus the styling columns the builder added on screen (colours, markers per
+    row, derived from the categories of the data); None when they cannot be kept.
+
+    They are kept when the rows and every text column (the categories they derive from, such
+    as a sector's fill class or an apsis name) are unchanged; otherwise the figure is rebuilt.
+    """
+    extra = set(screen) - set(data)
+    if not extra:
+        return data if set(data) == set(screen) else None
+    if set(data) - set(screen):
+        return None
+    lengths = {len(v) for v in data.values()} | {len(screen[c]) for c in extra}
+    if len(lengths) != 1:
+        return None
+    for column, values in data.items():
+        if _is_text_column(values) and list(values) != list(screen[column]):
+            return None
+    return {**{c: screen[c] for c in extra}, **data}
+
+
 def sync_model(screen: Model, fresh: Model) -> bool:
     """Copy ``fresh`` into ``screen`` (two figures made by the same builder), in place.
 
@@ -180,6 +209,13 @@ class LiveFigure:
         found = self._sources
         if set(columns) != set(found):
             return False  # structure changed (a station more or less): rebuild
+        merged: dict[str, dict[str, Any]] = {}
+        for name, data in columns.items():
+            full = _with_styling(found[name].data, data)
+            if full is None:
+                return False  # columns the screen lacks, or styling that no longer applies
+            merged[name] = full
+        columns = merged
 
         def apply() -> bool:
             for name, data in columns.items():

@@ -47,10 +47,15 @@ def format_value(value: Any, unit: str = "") -> str:
     if value == 0:
         return "0"
     magnitude = abs(value)
+    if float(value).is_integer() and magnitude < 1e7:
+        return f"{int(value):,}".replace(",", "\u2009").replace("-", "\u2212")
     if 1e-3 <= magnitude < 1e7:
         digits = max(0, 5 - int(math.floor(math.log10(magnitude))))
-        return f"{value:,.{digits}f}".replace(",", "\u2009")
-    return f"{value:.6g}"
+        text = f"{value:,.{digits}f}"
+        if "." in text:
+            text = text.rstrip("0").rstrip(".")
+        return text.replace(",", "\u2009").replace("-", "\u2212")
+    return f"{value:.6g}".replace("-", "\u2212")
 
 
 def _unit_html(unit: str) -> str:

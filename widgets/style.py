@@ -53,11 +53,16 @@ CSS = """
 .ol-section-title { font-weight: 600; color: var(--ol-accent);
   text-transform: uppercase; font-size: var(--jp-ui-font-size0, 11px); letter-spacing: 0.06em; }
 .ol-field { align-items: center; margin: 1px 0; }
-.ol-field input, .ol-field select, .ol-table input, .ol-table select {
+.ol-field input, .ol-table input {
   color: var(--jp-ui-font-color1, #1a1a1a);
   background: var(--jp-input-background, var(--jp-layout-color1, #fff));
   border-color: var(--jp-border-color1, #bdbdbd);
   font-family: var(--jp-code-font-family, monospace);
+}
+.ol-field select, .ol-table select {
+  color: var(--jp-ui-font-color1, #1a1a1a);
+  background-color: var(--jp-input-background, var(--jp-layout-color1, #fff));
+  border-color: var(--jp-border-color1, #bdbdbd);
 }
 .ol-field input:focus, .ol-table input:focus, .ol-editor button:focus-visible {
   outline: 2px solid var(--ol-accent);

@@ -156,10 +156,10 @@ class StationTable(ListTable):
     _NUMBERS = ("lat_deg", "lon_deg", "height_km", "elevation_mask_deg")
     columns = (
         ("name", "11em"),
-        ("latitude (deg)", "7.5em"),
-        ("longitude (deg)", "7.5em"),
-        ("height (km)", "7.5em"),
-        ("mask (deg)", "7.5em"),
+        ("latitude (deg)", "8.5em"),
+        ("longitude (deg)", "8.5em"),
+        ("height (km)", "8.5em"),
+        ("mask (deg)", "8.5em"),
     )
 
     def _row_widgets(self, index: int, entry: dict[str, Any]):
