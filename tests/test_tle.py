@@ -167,6 +167,15 @@ def test_far_epoch_warns_with_the_age_in_days():
         tle_case(TLE_06251, epoch_utc="2006-06-27T00:00:00Z")  # 1.2 days: no warning
 
 
+def test_window_far_from_the_tle_epoch_is_noted():
+    case = tle_case(TLE_06251).case.with_changes(
+        {"window.start_utc": "2006-06-30T00:00:00Z", "window.duration_s": 86_400.0}
+    )
+    notes = " ".join(case_trajectory(case).notes)
+    assert "SGP4 (sgp4 package, WGS-72" in notes
+    assert "reaches 5.2 days from the TLE epoch" in notes  # 4.2 d start + 1 d window
+
+
 def test_sgp4_case_results_and_our_propagators_over_a_day():
     """SGP4 against our two-body and J2 propagation of the imported state, over one day.
 
