@@ -17,7 +17,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ..kernel.errors import InputError
-from ..kernel.groundtrack import antimeridian_crossings
+from ..kernel.groundtrack import split_at_antimeridian
 
 __all__ = [
     "coastline_lon_lat",
@@ -58,53 +58,6 @@ def coastline_source() -> str:
     """The attribution line of the shipped coastline (Natural Earth, public domain)."""
     doc = _coastline_document()
     return f"{doc['source']}. {doc['licence']}"
-
-
-def split_at_antimeridian(
-    lon_deg: ArrayLike, lat_deg: ArrayLike, *columns: ArrayLike
-) -> tuple[np.ndarray, ...]:
-    """Break a lon/lat polyline where it crosses the antimeridian, for plotting.
-
-    The kernel's ``GroundTrack.plot_lon_lat`` does this for a track's longitude and latitude;
-    this form carries further columns along (the tooltip's times and heights) and serves the
-    visibility circles too. Crossings are found by ``kernel.groundtrack.antimeridian_crossings``.
-
-    Given longitudes in [-180, 180] deg, latitudes (deg) and optional further per-point columns
-    (times, heights...). Where consecutive longitudes jump by more than 180 deg the track has
-    crossed +-180: a point is interpolated on the edge it leaves, a NaN row breaks the line, and
-    a point on the opposite edge starts the next piece (the further columns are interpolated
-    the same way, NaN at the break). NaN points already present stay breaks. Returns
-    ``(lon, lat, *columns)`` as float arrays; no piece spans more than 180 deg of longitude.
-    """
-    lon = np.asarray(lon_deg, dtype=float).ravel()
-    lat = np.asarray(lat_deg, dtype=float).ravel()
-    extra = [np.asarray(c, dtype=float).ravel() for c in columns]
-    if any(len(c) != len(lon) for c in [lat, *extra]):
-        raise InputError("lat_deg", len(lat), "every column must have one value per longitude")
-    if len(lon) < 2:
-        return (lon, lat, *extra)
-    jumps = antimeridian_crossings(lon)  # the kernel's test; NaN differences compare False
-    step = np.diff(lon)
-    if len(jumps) == 0:
-        return (lon, lat, *extra)
-    # Crossing eastward (+180 -> -180) has step < -180: leave at +180, re-enter at -180.
-    edge = np.where(step[jumps] < 0.0, 180.0, -180.0)
-    lon_next = lon[jumps + 1] + 2.0 * edge  # the next point, unwrapped beside the current one
-    frac = (edge - lon[jumps]) / (lon_next - lon[jumps])
-    frac = np.clip(np.nan_to_num(frac, nan=0.5), 0.0, 1.0)
-
-    def cut(values: np.ndarray, leave: np.ndarray, enter: np.ndarray) -> np.ndarray:
-        inserts = np.column_stack([leave, np.full(len(jumps), np.nan), enter])
-        return np.insert(values, np.repeat(jumps + 1, 3), inserts.ravel())
-
-    out_lon = cut(lon, edge, -edge)
-    lat_cross = lat[jumps] + frac * (lat[jumps + 1] - lat[jumps])
-    out_lat = cut(lat, lat_cross, lat_cross)
-    out_extra = []
-    for c in extra:
-        c_cross = c[jumps] + frac * (c[jumps + 1] - c[jumps])
-        out_extra.append(cut(c, c_cross, c_cross))
-    return (out_lon, out_lat, *out_extra)
 
 
 def visibility_central_angle_deg(

@@ -19,7 +19,7 @@ from .frames import geodetic_from_itrf
 from .propagation import Trajectory
 from .timescales import TimeScales
 
-__all__ = ["GroundTrack", "antimeridian_crossings", "ground_track"]
+__all__ = ["GroundTrack", "antimeridian_crossings", "ground_track", "split_at_antimeridian"]
 
 
 @dataclass(frozen=True, eq=False)
@@ -52,26 +52,8 @@ class GroundTrack:
         """Longitude and latitude with, at each antimeridian crossing, the point on the map
         edge (+-180 deg, latitude interpolated linearly in longitude), a NaN, and the point on
         the opposite edge, so that a line plot never draws across the map."""
-        lon, lat = self.lon_deg, self.lat_deg
-        k = antimeridian_crossings(lon)
-        if k.size == 0:
-            return lon.copy(), lat.copy()
-        east = lon[k] > 0.0  # leaving over +180 (eastward motion) or over -180
-        lon_next = lon[k + 1] + np.where(east, 360.0, -360.0)
-        edge = np.where(east, 180.0, -180.0)
-        frac = (edge - lon[k]) / (lon_next - lon[k])
-        lat_edge = lat[k] + frac * (lat[k + 1] - lat[k])
-        inserts = np.stack([edge, np.full_like(edge, np.nan), -edge], axis=-1)
-        inserts_lat = np.stack([lat_edge, np.full_like(edge, np.nan), lat_edge], axis=-1)
-        pieces_lon, pieces_lat = [], []
-        start = 0
-        for j, idx in enumerate(k):  # a loop over crossings (about two per orbit), not epochs
-            pieces_lon += [lon[start : idx + 1], inserts[j]]
-            pieces_lat += [lat[start : idx + 1], inserts_lat[j]]
-            start = idx + 1
-        pieces_lon.append(lon[start:])
-        pieces_lat.append(lat[start:])
-        return np.concatenate(pieces_lon), np.concatenate(pieces_lat)
+        lon, lat = split_at_antimeridian(self.lon_deg, self.lat_deg)
+        return lon, lat
 
 
 def antimeridian_crossings(lon_deg: ArrayLike) -> np.ndarray:
@@ -80,6 +62,52 @@ def antimeridian_crossings(lon_deg: ArrayLike) -> np.ndarray:
     180 deg, i.e. much less than half an orbit)."""
     lon = np.asarray(lon_deg, dtype=float)
     return np.flatnonzero(np.abs(np.diff(lon)) > 180.0)
+
+
+def split_at_antimeridian(
+    lon_deg: ArrayLike, lat_deg: ArrayLike, *columns: ArrayLike
+) -> tuple[np.ndarray, ...]:
+    """Break a lon/lat polyline where it crosses the antimeridian, for plotting.
+
+    ``GroundTrack.plot_lon_lat`` applies it to a track; further columns (times, heights for a
+    figure's tooltip) are carried along, and any lon/lat polyline (a visibility circle) works.
+
+    Given longitudes in [-180, 180] deg, latitudes (deg) and optional further per-point columns
+    (times, heights...). Where consecutive longitudes jump by more than 180 deg the track has
+    crossed +-180: a point is interpolated on the edge it leaves, a NaN row breaks the line, and
+    a point on the opposite edge starts the next piece (the further columns are interpolated
+    the same way, NaN at the break). NaN points already present stay breaks. Returns
+    ``(lon, lat, *columns)`` as float arrays; no piece spans more than 180 deg of longitude.
+    """
+    lon = np.asarray(lon_deg, dtype=float).ravel()
+    lat = np.asarray(lat_deg, dtype=float).ravel()
+    extra = [np.asarray(c, dtype=float).ravel() for c in columns]
+    if any(len(c) != len(lon) for c in [lat, *extra]):
+        raise InputError("lat_deg", len(lat), "every column must have one value per longitude")
+    if len(lon) < 2:
+        return (lon, lat, *extra)
+    jumps = antimeridian_crossings(lon)  # the kernel's test; NaN differences compare False
+    step = np.diff(lon)
+    if len(jumps) == 0:
+        return (lon, lat, *extra)
+    # Crossing eastward (+180 -> -180) has step < -180: leave at +180, re-enter at -180.
+    edge = np.where(step[jumps] < 0.0, 180.0, -180.0)
+    lon_next = lon[jumps + 1] + 2.0 * edge  # the next point, unwrapped beside the current one
+    frac = (edge - lon[jumps]) / (lon_next - lon[jumps])
+    frac = np.clip(np.nan_to_num(frac, nan=0.5), 0.0, 1.0)
+
+    def cut(values: np.ndarray, leave: np.ndarray, enter: np.ndarray) -> np.ndarray:
+        inserts = np.column_stack([leave, np.full(len(jumps), np.nan), enter])
+        return np.insert(values, np.repeat(jumps + 1, 3), inserts.ravel())
+
+    out_lon = cut(lon, edge, -edge)
+    lat_cross = lat[jumps] + frac * (lat[jumps + 1] - lat[jumps])
+    out_lat = cut(lat, lat_cross, lat_cross)
+    out_extra = []
+    for c in extra:
+        c_cross = c[jumps] + frac * (c[jumps + 1] - c[jumps])
+        out_extra.append(cut(c, c_cross, c_cross))
+    return (out_lon, out_lat, *out_extra)
 
 
 def ground_track(
