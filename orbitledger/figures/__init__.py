@@ -8,6 +8,7 @@ notebook and tags it for the record. See docs/figures.md.
 """
 
 from .budget import budget_data, budget_figure
+from .ephemeris_difference import ephemeris_difference_data, ephemeris_difference_figure
 from .groundtrack import ground_track_data, ground_track_figure, station_circle
 from .inertial import inertial_data, inertial_figure, project, reproject
 from .mapping import split_at_antimeridian, visibility_central_angle_deg
@@ -40,6 +41,8 @@ __all__ = [
     "eclipse_timeline_data",
     "eclipse_timeline_figure",
     "ensure_notebook_bokehjs",
+    "ephemeris_difference_data",
+    "ephemeris_difference_figure",
     "forget_figures",
     "ground_track_data",
     "ground_track_figure",
