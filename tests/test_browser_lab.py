@@ -211,6 +211,11 @@ def _doc_screenshots(page, editor, folder: Path) -> None:
     (folder / "editor-figures-light.png").write_bytes(
         editor.locator(".ol-figures").first.screenshot()
     )
+    trade = page.locator(".ol-compare").first
+    trade.evaluate("e => e.scrollIntoView({block: 'start'})")
+    time.sleep(2.0)
+    (folder / "editor-compare-light.png").write_bytes(trade.screenshot())
+    editor.evaluate("e => e.scrollIntoView({block: 'start'})")
     page.locator(".lm-MenuBar-itemLabel", has_text="Settings").first.click()
     page.locator(".lm-Menu-itemLabel", has_text="Theme").first.hover()
     page.locator(".lm-Menu-itemLabel", has_text="JupyterLab Dark").first.click()

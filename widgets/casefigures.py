@@ -25,6 +25,7 @@ from orbitledger import kernel
 from orbitledger.analysis import case_trajectory as analysis_trajectory
 from orbitledger.kernel.eclipses import shadow_state
 from orbitledger.kernel.groundtrack import ground_track
+from orbitledger.kernel.propagation import Trajectory
 from orbitledger.kernel.sun import sun_position_gcrf_km
 
 __all__ = [
@@ -66,17 +67,32 @@ def window_offsets_s(case: Any) -> np.ndarray:
     return window.step_s * np.arange(n)
 
 
+@dataclass(frozen=True, eq=False)
+class _RememberingTrajectory(Trajectory):
+    """A trajectory that remembers its last evaluation at an array of offsets: the ground
+    track, its time tags and the shadow flags all read the same epochs, so the propagation
+    and the time-scale conversion (leap-second look-ups per epoch) run once per edit."""
+
+    def _memo(self, key: str, t: Any, compute: Callable[[], Any]) -> Any:
+        memo = self.__dict__.setdefault("_last", {})
+        hit = memo.get(key)
+        if hit is not None and hit[0] is t:
+            return hit[1]
+        value = compute()
+        memo[key] = (t, value)
+        return value
+
+    def times(self, offset_s: Any) -> Any:
+        return self._memo("times", offset_s, lambda: Trajectory.times(self, offset_s))
+
+    def gcrf(self, offset_s: Any) -> tuple[np.ndarray, np.ndarray]:
+        return self._memo("gcrf", offset_s, lambda: Trajectory.gcrf(self, offset_s))
+
+
 def _remembering(traj: Any) -> Any:
-    """The same trajectory, remembering its last state evaluation: the ground track and the
-    shadow flags read the same epochs, so the propagation runs once."""
-    last: dict[str, Any] = {}
-
-    def state_at(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        if last.get("t") is not t:
-            last["t"], last["state"] = t, traj.state_at(t)
-        return last["state"]
-
-    return dataclasses.replace(traj, state_at=state_at)
+    return _RememberingTrajectory(
+        **{f.name: getattr(traj, f.name) for f in dataclasses.fields(traj)}
+    )
 
 
 # The Sun moves about 1 deg a day along the ecliptic, so its position sampled every 30 min and
@@ -96,7 +112,7 @@ def case_track(case: Any) -> Any:
 
     def compute(c: Any) -> Any:
         traj = _remembering(case_trajectory(c))
-        t = window_offsets_s(c)
+        t = np.asarray(window_offsets_s(c), dtype=float)
         track = ground_track(traj, t)
         r, _v = traj.gcrf(t)
         shadow = shadow_state(r, _sun_positions_km(traj, t), "conical", traj.body) > 0
