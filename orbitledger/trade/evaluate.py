@@ -40,6 +40,7 @@ __all__ = [
     "CaseChunk",
     "as_case",
     "case_changes",
+    "chunk_size_for",
     "check_extremes",
     "estimate_bytes",
     "evaluate_cases",
@@ -190,7 +191,9 @@ def evaluate_chunk(chunk: CaseChunk) -> dict[str, Any]:
     return {"values": values, "units": units, "errors": errors}
 
 
-def _chunk_size(rows: int, workers: int, chunk_size: int | None) -> int:
+def chunk_size_for(rows: int, workers: int, chunk_size: int | None = None) -> int:
+    """Cases per task: ``chunk_size`` if given, else at least four tasks per worker and at
+    most a few hundred cases per task (scheduling overhead small against the work)."""
     if chunk_size is not None:
         if int(chunk_size) < 1:
             raise InputError("chunk_size", chunk_size, "must be at least 1 case per task")
@@ -251,7 +254,7 @@ def evaluate_cases(
         case_columns = tuple(c for c in selection.columns if c not in out)
         found = {c: [] for c in case_columns}
         with runner(scheduler, connect_timeout_s=connect_timeout_s, retries=retries) as run:
-            size = _chunk_size(rows, run.workers, chunk_size)
+            size = chunk_size_for(rows, run.workers, chunk_size)
             chunks = _chunks(case, columns, per_case, case_columns, selection, size)
             for part in run.map(
                 evaluate_chunk,
