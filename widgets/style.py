@@ -90,7 +90,7 @@ CSS = """
 .ol-results th, .ol-trade th { color: var(--ol-muted); font-weight: 500; }
 .ol-results td.ol-num, .ol-trade td.ol-num { text-align: right;
   font-family: var(--jp-code-font-family, monospace); font-variant-numeric: tabular-nums; }
-.ol-results tr.ol-group td { color: var(--ol-accent); font-weight: 600; padding-top: 5px;
+.ol-results tr.ol-group td, .ol-trade tr.ol-group td { color: var(--ol-accent); font-weight: 600; padding-top: 5px;
   border-bottom: none; font-size: var(--jp-ui-font-size0, 11px); text-transform: uppercase; }
 .ol-results td.ol-u, .ol-trade td.ol-u { color: var(--ol-muted); font-size: var(--jp-ui-font-size0, 11px); }
 .ol-trade td.ol-best { background: var(--ol-accent-soft); font-weight: 700; }
