@@ -19,8 +19,9 @@ import tempfile
 import time
 from pathlib import Path
 
-import orbitledger
 from orbitledger.widgets import CaseEditor
+
+import orbitledger
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "examples" / "candidate-a.case.json"
 
@@ -36,11 +37,14 @@ def bench(propagator: str, edits: int) -> dict[str, float]:
         if editor.case.force_model.propagator != propagator:
             editor.apply({"force_model.propagator": propagator})
         total, parts = [], {"kernel_s": [], "figure_data_s": [], "widget_s": [], "save_s": []}
+        per_figure: dict[str, list[float]] = {f.name: [] for f in editor._figures}
         for k in range(edits):
             e = 0.001 + 0.0005 * (k % 7)
             t0 = time.perf_counter()
             editor.apply({"orbit.e": e})
             total.append(time.perf_counter() - t0)
+            for fig in editor._figures:
+                per_figure[fig.name].append(fig.timings["build_s"] + fig.timings["sync_s"])
             for key in ("kernel_s", "figure_data_s", "widget_s"):
                 parts[key].append(editor.timings[key])
             parts["save_s"].append(
@@ -51,6 +55,7 @@ def bench(propagator: str, edits: int) -> dict[str, float]:
             )
         out = {"median_s": statistics.median(total)}
         out.update({key: statistics.median(values) for key, values in parts.items()})
+        out.update({f"figure {k}": statistics.median(v) for k, v in per_figure.items()})
         return out
 
 
@@ -78,6 +83,8 @@ def main() -> None:
             f" ms | widget traffic {ms['widget_s']:5.1f} ms | validate + save "
             f"{ms['save_s']:5.1f} ms"
         )
+        figures = ", ".join(f"{k[7:]} {v:.1f}" for k, v in ms.items() if k.startswith("figure "))
+        print(f"             per figure, data + sync (ms): {figures}")
 
 
 if __name__ == "__main__":

@@ -22,6 +22,7 @@ from typing import Any
 import numpy as np
 
 from orbitledger import kernel
+from orbitledger.analysis import budget_for_case
 from orbitledger.analysis import case_trajectory as analysis_trajectory
 from orbitledger.kernel.eclipses import shadow_state
 from orbitledger.kernel.groundtrack import ground_track
@@ -43,15 +44,21 @@ _cache: dict[tuple[int, str], tuple[Any, Any]] = {}
 
 
 def _cached(case: Any, key: str, fn: Callable[[Any], Any]) -> Any:
+    """``fn(case)``, computed once per case and key; the last few cases are kept."""
     slot = (id(case), key)
     hit = _cache.get(slot)
     if hit is not None and hit[0] is case:
         return hit[1]
     value = fn(case)
-    if len(_cache) > 24:
-        _cache.clear()
     _cache[slot] = (case, value)  # the case is kept so that its id is not reused meanwhile
+    cases = list(dict.fromkeys(k[0] for k in _cache))
+    for old in cases[:-_CASES_KEPT]:
+        for k in [k for k in _cache if k[0] == old]:
+            del _cache[k]
     return value
+
+
+_CASES_KEPT = 4
 
 
 def case_trajectory(case: Any) -> Any:
@@ -107,12 +114,20 @@ def _sun_positions_km(traj: Any, t: np.ndarray) -> np.ndarray:
     return np.stack([np.interp(t, nodes, at_nodes[:, k]) for k in range(3)], axis=-1)
 
 
+def _window_inputs(case: Any) -> tuple[Any, np.ndarray]:
+    """The case's remembering trajectory and the window's sample times (one pair per case)."""
+    return _cached(
+        case,
+        "window-inputs",
+        lambda c: (_remembering(case_trajectory(c)), np.asarray(window_offsets_s(c), dtype=float)),
+    )
+
+
 def case_track(case: Any) -> Any:
     """The kernel ``GroundTrack`` over the window, with the eclipse flags (conical shadow)."""
 
     def compute(c: Any) -> Any:
-        traj = _remembering(case_trajectory(c))
-        t = np.asarray(window_offsets_s(c), dtype=float)
+        traj, t = _window_inputs(c)
         track = ground_track(traj, t)
         r, _v = traj.gcrf(t)
         shadow = shadow_state(r, _sun_positions_km(traj, t), "conical", traj.body) > 0
@@ -142,7 +157,7 @@ def _one_orbit(case: Any) -> tuple[np.ndarray, np.ndarray]:
 def prime(case: Any) -> None:
     """Compute (and cache) the kernel results the figures of ``case`` draw from, so that the
     kernel's share of an edit can be timed apart from building the figure data."""
-    for compute in (case_track, _one_orbit):
+    for compute in (case_track, _one_orbit, _window_states, _budget):
         try:
             compute(case)
         except ValueError:
@@ -188,6 +203,7 @@ class _Builders:
     """The shared builders, found in ``orbitledger.figures`` or its modules (None if absent)."""
 
     _MODULES = {
+        "altitude_speed": "timeseries",
         "orbit_plane": "orbit_plane",
         "inertial": "inertial",
         "ground_track": "groundtrack",
@@ -248,7 +264,44 @@ def _figures() -> list[CaseFigure]:
                 lambda c, _s: f.ground_track_data([case_track(c)], _stations(c)),
             )
         )
+    if f.altitude_speed_figure is not None:
+        out.append(
+            CaseFigure(
+                "height and speed",
+                lambda c, theme: f.altitude_speed_figure(
+                    [_window_states(c)], body=c.body_constants(), theme=theme, labels=[_label(c)]
+                ),
+                lambda c, _s: f.altitude_speed_data([_window_states(c)], body=c.body_constants()),
+            )
+        )
+    if f.budget_figure is not None:
+        out.append(
+            CaseFigure(
+                "delta-v budget",
+                lambda c, theme: f.budget_figure([_budget(c)], theme=theme, labels=[_label(c)]),
+                lambda c, _s: f.budget_data([_budget(c)], labels=[_label(c)]),
+            )
+        )
     return out
+
+
+def _window_states(case: Any) -> dict[str, Any]:
+    """GCRF states over the window with their time tags (shared with the ground track)."""
+
+    def compute(c: Any) -> dict[str, Any]:
+        traj, t = _window_inputs(c)
+        r, v = traj.gcrf(t)
+        return {"times_utc": traj.times(t), "r_km": r, "v_km_s": v}
+
+    return _cached(case, "window-states", compute)
+
+
+def _budget(case: Any) -> Any:
+    """The kernel DeltaVBudget of the case (``analysis.budget_for_case``); a case without a
+    budget section, or without the spacecraft's mass and Isp, has no budget chart."""
+    if getattr(case, "budget", None) is None:
+        raise ValueError("no budget section in this case")
+    return _cached(case, "budget", lambda c: budget_for_case(c).budget)
 
 
 def _label(case: Any) -> str:
