@@ -292,13 +292,16 @@ def _orbit_columns(elements: Any, body: Any, names: Sequence[str]) -> dict[str, 
     from ..kernel.summary import orbit_summary
 
     summary = orbit_summary(elements, body=body)
+    # On closed orbits only the open-orbit quantities are non-finite (and those are not
+    # columns of a closed base case): the finiteness pass is needed only with open orbits.
+    closed = bool(np.all(np.asarray(elements.e) < 1.0))
     out: dict[str, np.ndarray] = {}
     for name in names:
         if name in _ELEMENT_NAMES:
             out[name] = np.asarray(getattr(elements, _ELEMENT_NAMES[name]), dtype=float)
         elif name in summary:
             column = np.asarray(summary[name], dtype=float)
-            if not np.isfinite(column).all():  # omitted by case_results for this conic
+            if not closed and not np.isfinite(column).all():  # omitted by case_results
                 column = np.where(np.isfinite(column), column, np.nan)
             out[name] = column
     return out

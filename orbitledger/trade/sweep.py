@@ -180,7 +180,7 @@ def sweep_inputs(base: Any, vary: Mapping[str, Any]) -> dict[str, np.ndarray]:
     """The input columns of a sweep: every combination of the varied values (full factorial,
     the first path varying slowest), ``{path: array of sweep_size}``."""
     axes = sweep_axes(base, vary)
-    mesh = np.meshgrid(*axes.values(), indexing="ij")
+    mesh = np.meshgrid(*axes.values(), indexing="ij", copy=False)
     return {path: m.ravel() for path, m in zip(axes, mesh, strict=True)}
 
 
@@ -205,6 +205,6 @@ def sweep(
     refuse_if_too_large(
         sweep_size(axes), len(axes), metrics, options.get("max_memory_bytes"), field="vary"
     )
-    mesh = np.meshgrid(*axes.values(), indexing="ij")
+    mesh = np.meshgrid(*axes.values(), indexing="ij", copy=False)
     inputs = {path: m.ravel() for path, m in zip(axes, mesh, strict=True)}
     return evaluate_cases(case, inputs, metrics, kind="sweep", **options)
