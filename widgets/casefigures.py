@@ -200,33 +200,12 @@ class CaseFigure:
 
 
 class _Builders:
-    """The shared builders, found in ``orbitledger.figures`` or its modules (None if absent)."""
-
-    _MODULES = {
-        "altitude_speed": "timeseries",
-        "orbit_plane": "orbit_plane",
-        "inertial": "inertial",
-        "ground_track": "groundtrack",
-        "budget": "budget",
-        "time_series": "timeseries",
-    }
+    """The shared builders of ``orbitledger.figures`` by name (None for one not there)."""
 
     def __getattr__(self, name: str) -> Any:
-        import importlib
-
         from orbitledger import figures
 
-        found = getattr(figures, name, None)
-        if found is not None:
-            return found
-        stem = name.removesuffix("_figure").removesuffix("_data")
-        module = self._MODULES.get(stem)
-        if module is None:
-            return None
-        try:
-            return getattr(importlib.import_module(f"orbitledger.figures.{module}"), name, None)
-        except ImportError:
-            return None
+        return getattr(figures, name, None)
 
 
 def _figures() -> list[CaseFigure]:

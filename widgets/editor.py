@@ -441,6 +441,8 @@ class CaseEditor(w.VBox):
         if spec.help:
             for widget in field.widget.children[:-2]:
                 widget.tooltip = f"{spec.path}: {spec.help}"
+        if spec.path == "window.start_utc":
+            field.input.placeholder = "the case epoch"
         field._section = section  # type: ignore[attr-defined]
         field.on_edit(lambda f: self._debounce.trigger(f.path, lambda: self._field_edited(f)))
         self._fields[spec.path] = field
