@@ -365,10 +365,21 @@ def build(
     if unknown or not to:
         raise InputError("--to", ",".join(to), "choose html, pdf or html,pdf")
     nb_path = Path(nb_path).resolve()
-    executed, manifest = execute_study(
-        read_notebook(nb_path), nb_path.parent, name=nb_path.name, progress=progress
-    )
-    return record_run(nb_path, executed, manifest, to=to, ledger_dir=ledger_dir, note=note)
+    printer = None
+    if "pdf" in to:  # start Chromium now: its launch overlaps the study's run
+        from .render_pdf import PdfPrinter
+
+        printer = PdfPrinter()
+    try:
+        executed, manifest = execute_study(
+            read_notebook(nb_path), nb_path.parent, name=nb_path.name, progress=progress
+        )
+        return record_run(
+            nb_path, executed, manifest, to=to, ledger_dir=ledger_dir, note=note, printer=printer
+        )
+    finally:
+        if printer is not None:
+            printer.cancel()  # no-op once it printed
 
 
 def record_run(
@@ -379,8 +390,12 @@ def record_run(
     to: tuple[str, ...] = ("html",),
     ledger_dir: str | Path | None = None,
     note: str = "",
+    printer: Any = None,
 ) -> BuildOutcome:
-    """Assemble, render and commit the record of an executed study (the second half of build)."""
+    """Assemble, render and commit the record of an executed study (the second half of build).
+
+    ``printer`` is a ``render_pdf.PdfPrinter`` started earlier, if any (else one is started).
+    """
     from .ledger import Ledger
     from .render_html import render_html
 
@@ -405,10 +420,10 @@ def record_run(
             reservation, "notebook.ipynb", notebook_bytes
         )
         if "pdf" in to:
-            from .render_pdf import BrowserMissing, print_record_pdf
+            from .render_pdf import BrowserMissing, PdfPrinter
 
             try:
-                pdf = print_record_pdf(html, record, notebook_bytes)
+                pdf = (printer or PdfPrinter()).print(html, record, notebook_bytes)
             except BrowserMissing as err:
                 outcome.messages.append(str(err))
             else:

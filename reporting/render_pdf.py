@@ -15,6 +15,7 @@ from __future__ import annotations
 import io
 import logging
 import os
+import queue
 import shutil
 import tempfile
 import threading
@@ -26,7 +27,7 @@ from typing import Any
 
 from .record import canonical_dumps
 
-__all__ = ["BrowserMissing", "chromium", "find_browser", "print_record_pdf"]
+__all__ = ["BrowserMissing", "PdfPrinter", "chromium", "find_browser", "print_record_pdf"]
 
 log = logging.getLogger("orbitledger.reporting")
 
@@ -117,31 +118,87 @@ def _footer(record: dict[str, Any]) -> str:
     )
 
 
-def _print(html: str, record: dict[str, Any]) -> bytes:
+def _print_page(browser: Any, html: str, record: dict[str, Any]) -> bytes:
     with tempfile.TemporaryDirectory(prefix="orbitledger-print-") as tmp:
         page_file = Path(tmp) / "record.html"
         page_file.write_text(html, encoding="utf-8")
-        with chromium() as browser:
-            page = browser.new_page()
-            page.route(
-                "**/*",
-                lambda route: (
-                    route.continue_() if route.request.url.startswith("file:") else route.abort()
-                ),
-            )
-            page.goto(page_file.as_uri(), wait_until="load")
-            page.emulate_media(media="print")
-            wait_for_figures(page)
-            page.evaluate(f"window.orbitledgerPrepareForPrint({_PRINT_WIDTH_PX})")
-            return page.pdf(
-                format="A4",
-                print_background=True,
-                display_header_footer=True,
-                header_template="<div></div>",
-                footer_template=_footer(record),
-                margin={"top": "16mm", "bottom": "18mm", "left": "15mm", "right": "15mm"},
-                prefer_css_page_size=True,
-            )
+        page = browser.new_page()
+        page.route(
+            "**/*",
+            lambda route: (
+                route.continue_() if route.request.url.startswith("file:") else route.abort()
+            ),
+        )
+        page.goto(page_file.as_uri(), wait_until="load")
+        page.emulate_media(media="print")
+        wait_for_figures(page)
+        page.evaluate(f"window.orbitledgerPrepareForPrint({_PRINT_WIDTH_PX})")
+        pdf = page.pdf(
+            format="A4",
+            print_background=True,
+            display_header_footer=True,
+            header_template="<div></div>",
+            footer_template=_footer(record),
+            margin={"top": "16mm", "bottom": "18mm", "left": "15mm", "right": "15mm"},
+            prefer_css_page_size=True,
+        )
+        page.close()
+        return pdf
+
+
+_WAIT_FOR_JOB_S = 3 * 3600.0
+
+
+class PdfPrinter:
+    """A Chromium started ahead of time in a worker thread, printing one record when asked.
+
+    ``orbitledger build`` starts it before the study runs, so that launching the browser
+    overlaps the notebook's run, and closing it overlaps the ledger's commit. The thread also
+    keeps playwright's sync API away from any running asyncio loop (a notebook kernel, the
+    Jupyter server), where playwright refuses to run.
+    """
+
+    def __init__(self) -> None:
+        self._jobs: queue.Queue[Any] = queue.Queue()
+        self._results: queue.Queue[Any] = queue.Queue()
+        self._thread = threading.Thread(target=self._run, name="orbitledger-pdf", daemon=False)
+        self._thread.start()
+
+    def _run(self) -> None:
+        try:
+            context = chromium()
+            browser = context.__enter__()
+        except BaseException as err:  # no browser, or it failed to start: say so when asked
+            if self._next_job() is not None:
+                self._results.put(("error", err))
+            return
+        try:
+            job = self._next_job()
+            if job is not None:
+                try:
+                    self._results.put(("pdf", _print_page(browser, *job)))
+                except BaseException as err:  # handed to the caller's thread
+                    self._results.put(("error", err))
+        finally:
+            context.__exit__(None, None, None)  # the caller has its PDF already
+
+    def _next_job(self) -> Any:
+        try:  # a caller that died without cancel() must not keep the process alive forever
+            return self._jobs.get(timeout=_WAIT_FOR_JOB_S)
+        except queue.Empty:
+            return None
+
+    def print(self, html: str, record: dict[str, Any], notebook: bytes) -> bytes:
+        """PDF bytes of the record ``html`` with its attachments; ``BrowserMissing`` if none."""
+        self._jobs.put((html, record))
+        kind, value = self._results.get()
+        if kind == "error":
+            raise value
+        return attach(value, record, notebook)
+
+    def cancel(self) -> None:
+        """Close the browser without printing (the build stopped before its PDF)."""
+        self._jobs.put(None)
 
 
 def attach(pdf: bytes, record: dict[str, Any], notebook: bytes) -> bytes:
@@ -176,22 +233,5 @@ def attach(pdf: bytes, record: dict[str, Any], notebook: bytes) -> bytes:
 
 
 def print_record_pdf(html: str, record: dict[str, Any], notebook: bytes) -> bytes:
-    """PDF bytes of the record ``html``; raises ``BrowserMissing`` when no Chromium is found.
-
-    Runs in a worker thread, so it also works where an asyncio loop is running (a notebook
-    kernel, the Jupyter server), which playwright's sync API refuses.
-    """
-    box: dict[str, Any] = {}
-
-    def work() -> None:
-        try:
-            box["pdf"] = _print(html, record)
-        except BaseException as err:  # handed to the caller's thread
-            box["error"] = err
-
-    thread = threading.Thread(target=work, name="orbitledger-pdf")
-    thread.start()
-    thread.join()
-    if "error" in box:
-        raise box["error"]
-    return attach(box["pdf"], record, notebook)
+    """PDF bytes of the record ``html``; raises ``BrowserMissing`` when no Chromium is found."""
+    return PdfPrinter().print(html, record, notebook)

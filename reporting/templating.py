@@ -68,8 +68,8 @@ def format_value(value: Any) -> str:
 
 
 _SECTION_ORDER = (
-    "meta", "epoch_utc", "body", "orbit", "spacecraft", "stations", "window",
-    "earth_orientation", "force_model", "burns", "budget", "source", "schema",
+    "epoch_utc", "body", "orbit", "spacecraft", "stations", "window", "earth_orientation",
+    "force_model", "burns", "budget", "source", "meta", "schema",
 )  # fmt: skip
 
 
@@ -87,7 +87,7 @@ def _section_of(path: str) -> str:
 
 
 def _section_key(name: str) -> tuple[int, str]:
-    order = ("case",) + _SECTION_ORDER
+    order = ("case", *_SECTION_ORDER)
     return (order.index(name) if name in order else 99, name)
 
 
