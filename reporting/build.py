@@ -15,6 +15,8 @@ import json
 import logging
 import re
 import sys
+import tempfile
+import warnings
 from dataclasses import dataclass, field
 from datetime import datetime, timezone
 from pathlib import Path
@@ -157,8 +159,11 @@ def execute_study(
         on_cell_start=on_start,
         on_cell_executed=on_done,
     )
+    # The kernel's own log (not the cells' output, which comes back as outputs) goes to a
+    # file: its start-up notices are noise on the terminal; its tail explains a dead kernel.
+    kernel_log = tempfile.TemporaryFile(mode="w+", prefix="orbitledger-kernel-")
     try:
-        client.execute()
+        client.execute(stderr=kernel_log)
     except CellExecutionError as err:
         raise BuildError(_cell_failure(run, current["index"], err)) from None
     except CellTimeoutError:
@@ -167,13 +172,18 @@ def execute_study(
             f"cell {i + 1} ({_first_line(run.cells[i].source)}) ran past {timeout_s:.0f} s"
         ) from None
     except DeadKernelError as err:
-        raise BuildError(f"the kernel died during cell {current['index'] + 1}: {err}") from None
+        kernel_log.seek(0)
+        tail = "\n".join("    " + line for line in kernel_log.read().splitlines()[-6:])
+        raise BuildError(
+            f"the kernel died during cell {current['index'] + 1}: {err}\n{tail}".rstrip()
+        ) from None
     except NoSuchKernel:
         raise BuildError(
             f"the notebook asks for kernel {kernel_name!r}, which is not installed"
         ) from None
     finally:
         bar.close()
+        kernel_log.close()
     last = run.cells.pop()
     manifest = next(
         (o["data"][MANIFEST_MIME] for o in last.outputs if MANIFEST_MIME in o.get("data", {})), None
@@ -296,10 +306,14 @@ def assemble_record(
         "source": "notebook cells tagged decision/rationale" if decision_md else "case meta",
     }
     named = manifest["results"]
-    standard = [
-        {"case": e["name"], "results": rec.standard_results(c)}
-        for e, c in zip(inputs, cases, strict=True)
-    ]
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        standard = [
+            {"case": e["name"], "results": rec.standard_results(c)}
+            for e, c in zip(inputs, cases, strict=True)
+        ]
+    notes = [f"{e['name']}: {w}" for e, c in zip(inputs, cases, strict=True) for w in c.warnings()]
+    notes += list(dict.fromkeys(str(w.message) for w in caught))
     cells = rec.notebook_cells(executed)
     return {
         "schema": rec.RECORD_SCHEMA,
@@ -313,6 +327,7 @@ def assemble_record(
         "signoffs": [],
         "decision": decision,
         "cautions": rec.cautions_for(datas),
+        "computation_notes": notes,
         "inputs": inputs,
         "models": [
             {"case": e["name"], "items": rec.models_and_assumptions(d)}

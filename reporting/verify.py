@@ -22,6 +22,7 @@ import json
 import math
 import re
 import tempfile
+import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -56,6 +57,7 @@ class VerifyReport:
     record_id: str = ""
     revision: Any = None
     checks: list[Check] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
 
     @property
     def ok(self) -> bool:
@@ -69,6 +71,7 @@ class VerifyReport:
         for c in self.checks:
             mark = "ok  " if c.ok else "DIFF"
             lines.append(f"  {mark} {c.what}" + (f": {c.detail}" if c.detail else ""))
+        lines += [f"  note {n}" for n in self.notes]
         failed = sum(not c.ok for c in self.checks)
         lines.append(
             f"{len(self.checks)} checks, all hold"
@@ -191,7 +194,12 @@ def _check_standard(
     by_case = {b["case"]: b["results"] for b in record.get("standard_results", [])}
     for name, model in cases:
         stated = by_case.get(name, [])
-        fresh = case_results(model)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            fresh = case_results(model)
+        for w in caught:
+            if str(w.message) not in report.notes:
+                report.notes.append(str(w.message))
         differs = []
         for row in stated:
             now = fresh.get(row["name"])
