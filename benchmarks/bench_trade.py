@@ -17,6 +17,7 @@ Run: /work/venv/bin/python benchmarks/bench_trade.py [--cases N] [--skip-dask]
 from __future__ import annotations
 
 import argparse
+import logging
 import os
 import sys
 import time
@@ -86,6 +87,7 @@ def per_case_metrics(base, cases: int) -> bool:
             threads_per_worker=1,
             processes=True,
             dashboard_address=None,
+            silence_logs=logging.CRITICAL,
             host="127.0.0.1",
         ) as cluster,
         Client(cluster, set_as_default=False) as client,
