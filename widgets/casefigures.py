@@ -208,7 +208,9 @@ class _Builders:
         return getattr(figures, name, None)
 
 
-def _figures() -> list[CaseFigure]:
+def _figures(theme: str = "light") -> list[CaseFigure]:
+    """The figures of a case; ``theme`` is the palette their data partners style with (the
+    one ``build`` is given), so that an update in place keeps the figure's colours."""
     f = _Builders()
 
     out: list[CaseFigure] = []
@@ -218,7 +220,9 @@ def _figures() -> list[CaseFigure]:
             CaseFigure(
                 "orbit plane",
                 lambda c, theme: orbit_plane(c.elements(), body=c.body_constants(), theme=theme),
-                lambda c, _s: f.orbit_plane_data(c.elements(), body=c.body_constants()),
+                lambda c, _s: f.orbit_plane_data(
+                    c.elements(), body=c.body_constants(), theme=theme
+                ),
             )
         )
     if f.inertial_figure is not None:
@@ -258,7 +262,7 @@ def _figures() -> list[CaseFigure]:
             CaseFigure(
                 "delta-v budget",
                 lambda c, theme: f.budget_figure([_budget(c)], theme=theme, labels=[_label(c)]),
-                lambda c, _s: f.budget_data([_budget(c)], labels=[_label(c)]),
+                lambda c, _s: f.budget_data([_budget(c)], labels=[_label(c)], theme=theme),
             )
         )
     return out
@@ -288,7 +292,7 @@ def _label(case: Any) -> str:
     return title.split(":", 1)[0]
 
 
-CASE_FIGURES: Callable[[], list[CaseFigure]] = _figures
+CASE_FIGURES: Callable[..., list[CaseFigure]] = _figures
 
 
 def case_figures(case: Any, *, theme: str = "light") -> dict[str, Any]:
@@ -296,7 +300,7 @@ def case_figures(case: Any, *, theme: str = "light") -> dict[str, Any]:
     for a notebook to pass to ``orbitledger.figures.show`` (and so to the record)."""
     case = case.case if hasattr(case, "case") and hasattr(case, "save") else case
     out = {}
-    for fig in CASE_FIGURES():
+    for fig in CASE_FIGURES(theme):
         try:
             out[fig.name] = fig.build(case, theme)
         except ValueError:

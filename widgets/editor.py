@@ -43,7 +43,7 @@ def editor_figures(theme: str = "light") -> list[tuple[str, Callable, Callable]]
     builders of ``orbitledger.figures`` from the case (see ``casefigures``)."""
     from .casefigures import CASE_FIGURES
 
-    return [(f.name, lambda case, f=f: f.build(case, theme), f.data) for f in CASE_FIGURES()]
+    return [(f.name, lambda case, f=f: f.build(case, theme), f.data) for f in CASE_FIGURES(theme)]
 
 
 def _case_warnings(case: Any) -> list[str]:

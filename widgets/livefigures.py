@@ -3,14 +3,16 @@
 A live figure keeps the Bokeh model that is on screen (inside a ``jupyter_bokeh.BokehModel``)
 and, on each edit, asks the same builder of ``orbitledger.figures`` for the new figure, then
 copies what changed into the model on screen: column data, ranges, texts, positions. Only
-those changes travel to the browser, as one document patch per changed property, so the plot
-is redrawn without being rebuilt, and the figure in the editor stays the one the record shows
+those changes travel to the browser (of a source, only its changed columns; numeric columns
+as binary buffers), all of one update in one document patch, so the plot is redrawn without
+being rebuilt, and the figure in the editor stays the one the record shows
 (one figure code path, design.md). When the structure differs (a station added, a burn
 removed) the on-screen model is replaced.
 """
 
 from __future__ import annotations
 
+import json
 import time
 from collections.abc import Callable, Iterator
 from typing import Any
@@ -77,48 +79,13 @@ def _same_value(a: Any, b: Any) -> bool:
         return False
 
 
-def _data_changed(old: dict[str, Any], new: dict[str, Any]) -> bool:
-    if old.keys() != new.keys():
-        return True
-    return any(not _same_value(old[k], new[k]) for k in new)
-
-
-def _is_text_column(values: Any) -> bool:
-    return (
-        isinstance(values, list | tuple)
-        and bool(values)
-        and all(isinstance(v, str) for v in values)
-    )
-
-
-def _with_styling(screen: dict[str, Any], data: dict[str, Any]) -> dict[str, Any] | None:
-    """``data`` plus the styling columns the builder added on screen (colours, markers per
-    row, derived from the categories of the data); None when they cannot be kept.
-
-    They are kept when the rows and every text column (the categories they derive from, such
-    as a sector's fill class or an apsis name) are unchanged; otherwise the figure is rebuilt.
-    """
-    extra = set(screen) - set(data)
-    if not extra:
-        return data if set(data) == set(screen) else None
-    if set(data) - set(screen):
-        return None
-    lengths = {len(v) for v in data.values()} | {len(screen[c]) for c in extra}
-    if len(lengths) != 1:
-        return None
-    for column, values in data.items():
-        if _is_text_column(values) and list(values) != list(screen[column]):
-            return None
-    return {**{c: screen[c] for c in extra}, **data}
-
-
 def sync_model(screen: Model, fresh: Model) -> bool:
     """Copy ``fresh`` into ``screen`` (two figures made by the same builder), in place.
 
     Returns False (and changes nothing) when their structure differs: a different number or
     kind of models; the caller then replaces the figure. Otherwise sets on ``screen`` every
-    plain property whose value differs, and replaces a source's ``data`` when any column
-    changed, so only what changed is sent to the browser.
+    plain property whose value differs, and of each source the columns that changed, so only
+    what changed is sent to the browser.
     """
     old_models, new_models = walk_models(screen), walk_models(fresh)
     if len(old_models) != len(new_models):
@@ -127,8 +94,12 @@ def sync_model(screen: Model, fresh: Model) -> bool:
         return False
     for old, new in zip(old_models, new_models, strict=True):
         if isinstance(old, ColumnDataSource):
-            if _data_changed(old.data, new.data):
+            if old.data.keys() != new.data.keys():
                 old.data = dict(new.data)
+            else:
+                changed = {c: v for c, v in new.data.items() if not _same_value(old.data[c], v)}
+                if changed:
+                    old.data.update(changed)
             continue
         for name, value in new.properties_with_values(include_defaults=False).items():
             if name in ("id", "name", "subscribed_events") or next(_models_in(value), None):
@@ -173,7 +144,7 @@ class LiveFigure:
         self.model: Model | None = None
         self._sources: dict[str, ColumnDataSource] = {}
         self.view: Any = None
-        self._BokehModel = BokehModel
+        self._BokehModel = _batching_bokeh_model(BokehModel)
         self.timings = {"build_s": 0.0, "sync_s": 0.0}
         self.widget = w.VBox([self.note])
         self.widget.add_class("ol-figure")
@@ -205,37 +176,85 @@ class LiveFigure:
         self.timings = {"build_s": t1 - t0, "sync_s": time.perf_counter() - t1}
 
     def _update_sources(self, columns: dict[str, dict[str, Any]]) -> bool:
+        """Put the data partner's columns into the sources on screen, in place; False (and
+        nothing changed) when the figure must be rebuilt: a source more or less (a station
+        added), or other columns than the screen's."""
         assert self.model is not None
         found = self._sources
         if set(columns) != set(found):
-            return False  # structure changed (a station more or less): rebuild
-        merged: dict[str, dict[str, Any]] = {}
-        for name, data in columns.items():
-            full = _with_styling(found[name].data, data)
-            if full is None:
-                return False  # columns the screen lacks, or styling that no longer applies
-            merged[name] = full
-        columns = merged
+            return False
+        if any(set(data) != set(found[name].data) for name, data in columns.items()):
+            return False
 
         def apply() -> bool:
             for name, data in columns.items():
-                if _data_changed(found[name].data, data):
-                    found[name].data = dict(data)
+                screen = found[name].data
+                changed = {c: v for c, v in data.items() if not _same_value(screen[c], v)}
+                if changed:  # one event per source, carrying only its changed columns
+                    screen.update(changed)
             return True
 
         return self._hold(apply)
 
     def _hold(self, action: Callable[[], bool]) -> bool:
+        """Run ``action`` with the document's events held, then send them to the browser as
+        one document patch (one message instead of one per changed property)."""
         assert self.model is not None
         doc = self.model.document
         if doc is None:
             return action()
-        doc.hold("combine")  # one patch per changed property, not one per intermediate value
+        view = self.view if hasattr(self.view, "begin_batch") else None
+        doc.hold("combine")  # one event per changed property, not one per intermediate value
+        if view is not None:
+            view.begin_batch()
         try:
             return action()
         finally:
             doc.unhold()
+            if view is not None:
+                view.end_batch()
 
 
 def _escape(text: str) -> str:
     return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
+
+
+_BatchingBokehModel: Any = None
+
+
+def _batching_bokeh_model(base: type) -> type:
+    """``jupyter_bokeh.BokehModel`` that can send a run of document events as one PATCH-DOC
+    message (as a Bokeh server does; the browser side applies a patch's events together),
+    made once per kernel."""
+    global _BatchingBokehModel
+    if _BatchingBokehModel is not None:
+        return _BatchingBokehModel
+
+    class BatchingBokehModel(base):  # type: ignore[misc, valid-type]
+        _batch: list | None = None
+
+        def begin_batch(self) -> None:
+            self._batch = []
+
+        def end_batch(self) -> None:
+            events, self._batch = self._batch or [], None
+            if not events:
+                return
+            from bokeh.protocol import Protocol
+
+            msg = Protocol().create("PATCH-DOC", events)
+            self.send({"msg": "patch", "payload": msg.header_json})
+            self.send({"msg": "patch", "payload": msg.metadata_json})
+            self.send({"msg": "patch", "payload": msg.content_json})
+            for buffer in msg.buffers:
+                self.send({"msg": "patch", "payload": json.dumps(buffer.ref)})
+                self.send({"msg": "patch"}, [buffer.to_bytes()])
+
+        def _document_patched(self, event: Any) -> None:
+            if self._batch is not None and event.setter is not self:
+                self._batch.append(event)
+                return
+            super()._document_patched(event)
+
+    _BatchingBokehModel = BatchingBokehModel
+    return BatchingBokehModel

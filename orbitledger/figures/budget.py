@@ -27,9 +27,17 @@ TOTAL_LINE = "total"
 _M_PER_KM = 1000.0
 
 
-def budget_data(budgets: Any, *, labels: Sequence[str] | None = None) -> FigureData:
+def budget_data(
+    budgets: Any, *, labels: Sequence[str] | None = None, theme: str | Palette = "light"
+) -> FigureData:
     """Columns of the budget chart: source "lines" with one row per (line, budget), in order,
-    and a final "total" row per budget."""
+    and a final "total" row per budget.
+
+    Every column the chart draws is here, styling included (``colour`` of the budget in the
+    ``theme``'s palette, the ``value_text`` labels, the bars' ``zero`` base and the total's
+    ``total_hatch``), so that a live view updates the chart in place from this data alone.
+    """
+    pal = palette_for(theme)
     budgets = as_list(budgets, lambda b: isinstance(b, DeltaVBudget))
     if not budgets or not all(isinstance(b, DeltaVBudget) for b in budgets):
         raise InputError("budgets", budgets, "needs one or more kernel DeltaVBudget results")
@@ -107,6 +115,10 @@ def budget_data(budgets: Any, *, labels: Sequence[str] | None = None) -> FigureD
         key: (np.asarray(v, dtype=float) if key.endswith(("_m_s", "_kg")) else v)
         for key, v in cols.items()
     }
+    data["colour"] = [pal.series_colour(k) for k in cols["colour_index"]]
+    data["zero"] = np.zeros(len(cols["line"]))
+    data["total_hatch"] = [" " if name != TOTAL_LINE else "/" for name in cols["line"]]
+    data["value_text"] = [f"{v:.1f} m/s" for v in cols["with_margin_m_s"]]
     return {"lines": data}
 
 
@@ -120,7 +132,7 @@ def budget_figure(
 ):
     """Horizontal stacked bars: computed delta-v and margin per line, then the total."""
     pal = palette_for(theme)
-    data = budget_data(budgets, labels=labels)
+    data = budget_data(budgets, labels=labels, theme=pal)
     cols = data["lines"]
     factors = list(dict.fromkeys(cols["factor"]))[::-1]  # first line at the top
     n_budgets = len(set(cols["budget"]))
@@ -139,9 +151,6 @@ def budget_figure(
     )
     fig.ygrid.visible = False
     src = named_source(data, "lines")
-    src.data["colour"] = [pal.series_colour(k) for k in cols["colour_index"]]
-    src.data["zero"] = np.zeros(len(cols["line"]))
-    src.data["total_hatch"] = [" " if name != TOTAL_LINE else "/" for name in cols["line"]]
     legend = {"legend_label": "computed"} if n_budgets == 1 else {}
     bars = fig.hbar(
         y="factor",
@@ -187,7 +196,6 @@ def budget_figure(
         fig.yaxis.group_label_orientation = "horizontal"
         fig.yaxis.group_text_color = pal.ink
         fig.yaxis.group_text_font_style = "normal"
-    src.data["value_text"] = [f"{v:.1f} m/s" for v in cols["with_margin_m_s"]]
     fig.add_layout(
         LabelSet(
             x="with_margin_m_s",

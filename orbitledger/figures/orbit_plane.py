@@ -129,14 +129,23 @@ def _sectors(elements: Elements, summary, mu: float, sectors: int) -> dict[str, 
 
 
 def orbit_plane_data(
-    orbits: Any, *, body: Body = EARTH, sectors: int = 8, sweep_orbit: int = 0
+    orbits: Any,
+    *,
+    body: Body = EARTH,
+    sectors: int = 8,
+    sweep_orbit: int = 0,
+    theme: str | Palette = "light",
 ) -> FigureData:
     """Columns of every source of the orbit-plane view, by source name.
 
     ``orbits``: one kernel ``Elements`` or a sequence (elliptic or hyperbolic; scalar fields),
     about ``body``. The true anomaly ``nu_deg`` places the current position. Equal-time sweep
     sectors (``sectors`` >= 2, 0 for none) are drawn for the orbit at index ``sweep_orbit``.
+    Every column the view draws is here, styling included (the sectors' and apsides'
+    ``colour`` in the ``theme``'s palette, the apsides' ``marker``), so that a live view
+    updates the figure in place from this data alone.
     """
+    pal = palette_for(theme)
     orbits = as_list(orbits, lambda o: isinstance(o, Elements))
     if not orbits:
         raise InputError("orbits", orbits, "needs at least one orbit")
@@ -175,6 +184,9 @@ def orbit_plane_data(
             apse_x = [r_p, -r_a]
         else:
             apse_x = [r_p, 0.0]  # the hyperbola's apse line: focus to vertex
+        count = len(apsides["name"])
+        apsides["marker"] = ["diamond", "square"][:count]
+        apsides["colour"] = [pal.periapsis, pal.apoapsis][:count]
         data[f"apsides-{k}"] = apsides
         data[f"foci-{k}"] = {
             "x_km": [0.0, -2.0 * a * e],
@@ -209,7 +221,9 @@ def orbit_plane_data(
             "y_end": [r_now[1] + scale * v_now[1]],
         }
         if sectors and k == sweep_orbit:
-            data["sectors"] = _sectors(el, summary, mu, int(sectors))
+            swept = _sectors(el, summary, mu, int(sectors))
+            swept["colour"] = [pal.sector_fills[f] for f in swept["fill"]]
+            data["sectors"] = swept
     theta = np.linspace(0.0, 2.0 * np.pi, 181)
     data["body"] = {"x_km": radius * np.cos(theta), "y_km": radius * np.sin(theta)}
     return data
@@ -228,7 +242,7 @@ def orbit_plane_figure(
 ):
     """The orbit-plane view of one or more orbits (see ``orbit_plane_data``)."""
     pal = palette_for(theme)
-    data = orbit_plane_data(orbits, body=body, sectors=sectors, sweep_orbit=sweep_orbit)
+    data = orbit_plane_data(orbits, body=body, sectors=sectors, sweep_orbit=sweep_orbit, theme=pal)
     n = sum(1 for name in data if name.startswith("conic-"))
     names = labels_for(labels, n, "orbit")
     fig = new_figure(
@@ -244,7 +258,6 @@ def orbit_plane_figure(
     )
     if "sectors" in data:
         src = named_source(data, "sectors")
-        src.data["colour"] = [pal.sector_fills[f] for f in src.data["fill"]]
         wedges = fig.patches(
             "xs",
             "ys",
@@ -345,9 +358,6 @@ def _draw_orbit(
             )
         )
     aps = named_source(data, f"apsides-{k}")
-    count = len(aps.data["name"])
-    aps.data["marker"] = ["diamond", "square"][:count]
-    aps.data["colour"] = [pal.periapsis, pal.apoapsis][:count]
     apsides = fig.scatter(
         "x_km",
         "y_km",
