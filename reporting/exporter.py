@@ -30,7 +30,13 @@ from .build import FIGURE_MIME
 from .figure_items import drawable_item
 from .templating import record_context
 
-__all__ = ["OrbitRecordExporter", "TEMPLATES_DIR", "safe_markdown", "sanitize_html"]
+__all__ = [
+    "OrbitRecordExporter",
+    "OrbitRecordPDFExporter",
+    "TEMPLATES_DIR",
+    "safe_markdown",
+    "sanitize_html",
+]
 
 TEMPLATES_DIR = Path(__file__).resolve().parent.parent / "templates"
 if not (TEMPLATES_DIR / "orbitrecord").is_dir():  # installed as a wheel: package data
@@ -239,3 +245,32 @@ class OrbitRecordExporter(HTMLExporter):
         executed, manifest = execute_study(nb, folder, name=f"{name}.ipynb", progress=False)
         record = assemble_record(folder / f"{name}.ipynb", executed, manifest)
         return executed, record
+
+
+class OrbitRecordPDFExporter(OrbitRecordExporter):
+    """The same record printed to PDF by Chromium (``jupyter nbconvert --to orbitrecord_pdf``)."""
+
+    export_from_notebook = "Orbit calculation record (PDF)"
+    output_mimetype = "application/pdf"
+
+    @default("file_extension")
+    def _file_extension_default(self) -> str:
+        return ".pdf"
+
+    def from_notebook_node(
+        self, nb: Any, resources: dict[str, Any] | None = None, **kw: Any
+    ) -> Any:
+        import nbformat
+
+        from .build import archived_notebook
+        from .render_pdf import print_record_pdf
+
+        resources = dict(resources or {})
+        record = resources.get("orbitledger_record")
+        if record is None:
+            nb, record = self._run_study(nb, resources)
+            resources["orbitledger_record"] = record
+        html, resources = super().from_notebook_node(nb, resources, **kw)
+        notebook = nbformat.writes(archived_notebook(nb)).encode("utf-8")
+        resources["output_extension"] = ".pdf"
+        return print_record_pdf(html, record, notebook), resources

@@ -91,3 +91,17 @@ def test_the_figure_is_drawn_on_its_page(pdf, tmp_path):
     assert hits > 100, f"the figure area looks blank: {hits} line-coloured pixels"
     # And the rest of a drawn figure: axes, ticks and labels make many non-white pixels.
     assert int((pixels.sum(axis=-1) < 600).sum()) > 2000
+
+
+@pytest.mark.slow
+def test_the_pdf_exporter_prints_a_record_from_a_notebook_alone(tmp_path):
+    # What `jupyter nbconvert --to orbitrecord_pdf` does: run, render, print; no ledger.
+    from orbitledger.reporting.exporter import OrbitRecordPDFExporter
+    from pypdf import PdfReader
+
+    body, resources = OrbitRecordPDFExporter().from_filename(str(write_study(tmp_path)))
+    assert resources["output_extension"] == ".pdf" and body[:5] == b"%PDF-"
+    out = tmp_path / "study.pdf"
+    out.write_bytes(body)
+    assert verify_file(out).ok
+    assert PdfReader(out).metadata["/OrbitLedgerRevision"] == "None"
