@@ -210,14 +210,15 @@ def attach(pdf: bytes, record: dict[str, Any], notebook: bytes) -> bytes:
 
     writer = PdfWriter(clone_from=PdfReader(io.BytesIO(pdf)))
     rev = record.get("revision")
+    label = str(rev) if rev is not None else "unrecorded"
     writer.add_metadata(
         {
             "/Title": f"{record['title']} ({record['record_id']} rev {rev if rev is not None else 'unrecorded'})",
             "/Subject": "orbitledger calculation record",
             "/Author": record.get("prepared", {}).get("name", ""),
-            "/Keywords": f"record_id={record['record_id']}; revision={rev}; status={record.get('status')}",
+            "/Keywords": f"record_id={record['record_id']}; revision={label}; status={record.get('status')}",
             "/OrbitLedgerRecordId": record["record_id"],
-            "/OrbitLedgerRevision": str(rev),
+            "/OrbitLedgerRevision": label,
             "/Creator": f"orbitledger {record.get('environment', {}).get('orbitledger', '')}",
         }
     )

@@ -104,4 +104,4 @@ def test_the_pdf_exporter_prints_a_record_from_a_notebook_alone(tmp_path):
     out = tmp_path / "study.pdf"
     out.write_bytes(body)
     assert verify_file(out).ok
-    assert PdfReader(out).metadata["/OrbitLedgerRevision"] == "None"
+    assert PdfReader(out).metadata["/OrbitLedgerRevision"] == "unrecorded"
