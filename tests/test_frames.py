@@ -88,6 +88,33 @@ def test_gridded_precession_nutation_matches_erfa_c2t06a() -> None:
     assert np.max(np.abs(ours - ref)) < 0.1 * MM
 
 
+def test_zero_pole_offsets_match_erfa_c2t06a_and_the_state_path() -> None:
+    # xp = yp = 0 takes the path without a polar-motion matrix per epoch: ERFA c2t06a with
+    # zero pole offsets (its W is R3(s') alone) is the reference, to 0.1 mm at 7000 km; the
+    # velocity matches the same transformation written out with ERFA's matrices (c2t06a
+    # for W R3(ERA) C, plus omega x r in the rotating frame, IERS Conventions 2010, Ch. 5).
+    ts = time_scales("2027-03-21T00:00:00Z", offset_s=np.linspace(0, 86400.0, 97), dut1_s=0.1)
+    rng = np.random.default_rng(3)
+    r = rng.normal(size=(97, 3)) * 4000.0
+    v = rng.normal(size=(97, 3)) * 4.0
+    m = erfa.c2t06a(ts.tt1, ts.tt2, ts.ut11, ts.ut12, 0.0, 0.0)
+    r_ref = np.einsum("...ij,...j->...i", m, r)
+    # Earth rotation rate: 2 pi 1.00273781191135448 rad per UT1 day, the ERA rate (IERS
+    # Conventions 2010, Eq. 5.15).
+    omega = np.array([0.0, 0.0, 2.0 * math.pi * 1.00273781191135448 / 86_400.0])
+    v_ref = np.einsum("...ij,...j->...i", m, v) - np.cross(omega, r_ref)
+    r_ours, v_ours = gcrf_to_itrf_state(r, v, ts)
+    assert np.max(np.abs(r_ours - r_ref)) < 0.1 * MM
+    assert np.max(np.abs(v_ours - v_ref)) < 0.001 * MM_S
+    # and it agrees with the general path (pole offsets of 1e-9 arcsec: 3 micrometres at
+    # 7000 km, within the tolerance) to 0.01 mm, both ways.
+    r_gen, v_gen = gcrf_to_itrf_state(r, v, ts, xp_arcsec=1e-9)
+    assert np.max(np.abs(r_ours - r_gen)) < 0.01 * MM
+    assert np.max(np.abs(v_ours - v_gen)) < 0.01 * MM_S
+    back_r, back_v = itrf_to_gcrf_state(r_ours, v_ours, ts)
+    assert np.max(np.abs(back_r - r)) < 1e-9 and np.max(np.abs(back_v - v)) < 1e-12
+
+
 def test_velocity_transform_matches_finite_difference() -> None:
     # A GCRF state moving in a straight line, seen in ITRF: the transformed velocity equals
     # the time derivative of the transformed positions (central difference, common practice).

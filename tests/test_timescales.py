@@ -5,6 +5,7 @@ from __future__ import annotations
 import datetime as dt
 import warnings
 
+import erfa
 import numpy as np
 import pytest
 
@@ -41,6 +42,32 @@ def test_tai_minus_utc_across_the_2016_leap_second() -> None:
         "2016-12-31T23:59:60Z",
         "2017-01-01T00:00:00Z",
     ]
+
+
+@pytest.mark.parametrize(
+    ("start", "holds_leap_second"),
+    [
+        ("2027-03-21T10:30:00Z", False),
+        ("2016-12-31T00:00:10Z", True),
+        ("2016-12-30T23:59:55Z", False),
+        ("1971-12-31T12:00:00Z", False),
+    ],
+)
+def test_window_steps_match_erfa_epoch_by_epoch(start: str, holds_leap_second: bool) -> None:
+    # A day at 10 s steps: UTC and UT1 equal ERFA's own conversion of each epoch (taiutc,
+    # utcut1: the reference) to 1 ns, whether the window holds no leap second (one TAI - UTC
+    # for the whole window), the 2016-12-31 leap second (IERS Bulletin C 52) or only part of
+    # its 86 401 s day, or the switch to whole-second UTC on 1972-01-01 (IERS; TAI - UTC =
+    # 10 s from then on).
+    offsets = np.arange(0.0, 86_401.0, 10.0)
+    ts = time_scales(start, offset_s=offsets, dut1_s=0.3)
+    u1, u2 = erfa.taiutc(ts.tai1, ts.tai2)
+    b1, b2 = erfa.utcut1(u1, u2, 0.3)
+    ns = 1e-9 / 86_400.0
+    assert np.max(np.abs((ts.utc1 - u1) + (ts.utc2 - u2))) < ns
+    assert np.max(np.abs((ts.ut11 - b1) + (ts.ut12 - b2))) < ns
+    labels = utc_iso(ts.utc1, ts.utc2, 0)
+    assert ("2016-12-31T23:59:60Z" in set(labels)) == holds_leap_second
 
 
 def test_tt_minus_tai_and_dut1() -> None:

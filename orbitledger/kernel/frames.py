@@ -66,14 +66,18 @@ def _cip_xys(ts: TimeScales) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return on_time_grid(erfa.xys06a, ts.tt1, ts.tt2, _GRID_DAYS)  # type: ignore[return-value]
 
 
-def _pole_matrix(ts: TimeScales, xp_arcsec: float, yp_arcsec: float) -> np.ndarray:
+def _pole_offsets_rad(xp_arcsec: float, yp_arcsec: float) -> tuple[float, float]:
     for name, value in (("xp_arcsec", xp_arcsec), ("yp_arcsec", yp_arcsec)):
         if not np.isfinite(value) or abs(value) > 2.0:
             raise InputError(
                 f"earth_orientation.{name}", value, "must be a pole offset within 2 arcsec"
             )
-    sp = erfa.sp00(ts.tt1, ts.tt2)
-    return erfa.pom00(xp_arcsec * erfa.DAS2R, yp_arcsec * erfa.DAS2R, sp)
+    return xp_arcsec * erfa.DAS2R, yp_arcsec * erfa.DAS2R
+
+
+def _pole_matrix(ts: TimeScales, xp_arcsec: float, yp_arcsec: float) -> np.ndarray:
+    xp, yp = _pole_offsets_rad(xp_arcsec, yp_arcsec)
+    return erfa.pom00(xp, yp, erfa.sp00(ts.tt1, ts.tt2))
 
 
 def earth_rotation_angle_rad(ts: TimeScales) -> np.ndarray:
@@ -91,6 +95,31 @@ def _parts(ts: TimeScales, xp_arcsec: float, yp_arcsec: float):
     era = earth_rotation_angle_rad(ts)
     pom = _pole_matrix(ts, xp_arcsec, yp_arcsec)
     return c2i, np.asarray(era), pom
+
+
+def _rotation_parts(ts: TimeScales, xp_arcsec: float, yp_arcsec: float):
+    """C (GCRS to CIRS), the angle of the rotation about the CIP and the polar-motion matrix
+    W, or None for W when the pole offsets are zero.
+
+    ERFA ``pom00`` makes W = R1(-yp) R2(-xp) R3(s'); with xp = yp = 0 that is R3(s'), and
+    R3(s') R3(ERA) = R3(ERA + s') (rotations about one axis add), so the TIO locator s' joins
+    the Earth rotation angle and no matrix per epoch is built: the same transformation
+    (IERS Conventions 2010, Eq. 5.1), to rounding.
+    """
+    xp, yp = _pole_offsets_rad(xp_arcsec, yp_arcsec)
+    if xp != 0.0 or yp != 0.0:
+        return _parts(ts, xp_arcsec, yp_arcsec)
+    c2i = erfa.c2ixys(*_cip_xys(ts))
+    angle = np.asarray(earth_rotation_angle_rad(ts)) + erfa.sp00(ts.tt1, ts.tt2)
+    return c2i, np.asarray(angle), None
+
+
+def _apply_pole(pom: np.ndarray | None, v: np.ndarray) -> np.ndarray:
+    return v if pom is None else _matvec(pom, v)
+
+
+def _undo_pole(pom: np.ndarray | None, v: np.ndarray) -> np.ndarray:
+    return v if pom is None else _tmatvec(pom, v)
 
 
 def celestial_to_terrestrial_matrix(
@@ -144,14 +173,16 @@ def gcrf_to_itrf_state(
     frame: v_ITRF = W [R3(theta) C v - omega x (R3(theta) C r)].
     """
     r = _vectors(r_km, "r_km")
-    c2i, era, pom = _parts(_scales(epoch_utc, dut1_s), xp_arcsec, yp_arcsec)
+    c2i, era, pom = _rotation_parts(_scales(epoch_utc, dut1_s), xp_arcsec, yp_arcsec)
     r_tirs = _rz_apply(era, _matvec(c2i, r))
-    r_out = _matvec(pom, r_tirs)
+    r_out = _apply_pole(pom, r_tirs)
     if v_km_s is None:
         return r_out, None
     v = _vectors(v_km_s, "v_km_s")
+    # omega x r commutes with R3(s') (both about the z axis), so folding s' into the angle
+    # leaves the velocity term as it is.
     v_tirs = _rz_apply(era, _matvec(c2i, v)) - _omega_cross(r_tirs)
-    return r_out, _matvec(pom, v_tirs)
+    return r_out, _apply_pole(pom, v_tirs)
 
 
 def itrf_to_gcrf_state(
@@ -169,13 +200,13 @@ def itrf_to_gcrf_state(
     in its CIO form; IERS Conventions 2010, Ch. 5).
     """
     r = _vectors(r_km, "r_km")
-    c2i, era, pom = _parts(_scales(epoch_utc, dut1_s), xp_arcsec, yp_arcsec)
-    r_tirs = _tmatvec(pom, r)
+    c2i, era, pom = _rotation_parts(_scales(epoch_utc, dut1_s), xp_arcsec, yp_arcsec)
+    r_tirs = _undo_pole(pom, r)
     r_out = _tmatvec(c2i, _rz_apply(-era, r_tirs))
     if v_km_s is None:
         return r_out, None
     v = _vectors(v_km_s, "v_km_s")
-    v_tirs = _tmatvec(pom, v) + _omega_cross(r_tirs)
+    v_tirs = _undo_pole(pom, v) + _omega_cross(r_tirs)
     return r_out, _tmatvec(c2i, _rz_apply(-era, v_tirs))
 
 

@@ -190,6 +190,39 @@ def _check_extrapolation(utc1: np.ndarray, utc2: np.ndarray) -> bool:
     return extrapolated
 
 
+def _ends(jd1: np.ndarray, jd2: np.ndarray) -> np.ndarray:
+    """Indices (into the flattened arrays) of the earliest and the latest of the epochs."""
+    jd = np.ravel(jd1 + jd2)
+    if jd.size == 0:
+        return np.zeros(0, dtype=int)
+    return np.array([int(np.argmin(jd)), int(np.argmax(jd))])
+
+
+def _constant_tai_utc_s(end1: np.ndarray, end2: np.ndarray) -> float | None:
+    """TAI - UTC, s, when it is one value over every UTC day from the first to the last of the
+    epochs whose UTC quasi Julian dates ``end1 + end2`` are the earliest and the latest; None
+    when it may change in between (or there are no epochs).
+
+    From 1972 TAI - UTC changes only by whole leap seconds at the end of a UTC day and never
+    decreases (IERS Bulletin C; ERFA ``dat``), so equal values at 0 h of the first day and at
+    0 h of the day after the last mean no leap second falls inside, and no day of the span is
+    a 86 401 s day. Before 1972 it drifted within the day: None, so each epoch is converted
+    by ERFA itself. Past the table's validity ``dat`` keeps its last value, as it does epoch
+    by epoch (the extrapolation flag is set from the epochs in any case).
+    """
+    end1, end2 = np.ravel(end1), np.ravel(end2)
+    if end1.size == 0:
+        return None
+    iy, im, iday, _ = erfa.jd2cal(end1, end2)
+    if int(iy[0]) < 1972:
+        return None
+    first = erfa.dat(iy[0], im[0], iday[0], 0.0)
+    day1, day2 = erfa.cal2jd(iy[-1], im[-1], iday[-1])
+    ny, nm, nd, _ = erfa.jd2cal(day1, day2 + 1.0)
+    after_last = erfa.dat(ny, nm, nd, 0.0)
+    return float(first) if first == after_last else None
+
+
 def time_scales(
     epoch_utc: EpochLike,
     *,
@@ -214,9 +247,22 @@ def time_scales(
         tai1, tai2 = erfa.utctai(utc1, utc2)
         if np.any(offset != 0.0):
             tai1, tai2 = np.broadcast_arrays(tai1, tai2 + offset / 86_400.0)
-            utc1, utc2 = erfa.taiutc(tai1, tai2)
+            ends = _ends(np.asarray(tai1, dtype=float), np.asarray(tai2, dtype=float))
+            tai_utc_s = _constant_tai_utc_s(
+                *erfa.taiutc(np.ravel(tai1)[ends], np.ravel(tai2)[ends])
+            )
+            if tai_utc_s is None:  # a leap second (or pre-1972 UTC) inside: epoch by epoch
+                utc1, utc2 = erfa.taiutc(tai1, tai2)
+            else:
+                utc1, utc2 = tai1, tai2 - tai_utc_s / 86_400.0
+        else:
+            ends = _ends(np.asarray(utc1, dtype=float), np.asarray(utc2, dtype=float))
+            tai_utc_s = _constant_tai_utc_s(np.ravel(utc1)[ends], np.ravel(utc2)[ends])
         tt1, tt2 = erfa.taitt(tai1, tai2)
-        ut11, ut12 = erfa.utcut1(utc1, utc2, dut1_s)
+        if tai_utc_s is None:
+            ut11, ut12 = erfa.utcut1(utc1, utc2, dut1_s)
+        else:  # UT1 = TAI + (dUT1 - (TAI - UTC)), as ERFA utcut1 -> taiut1 does
+            ut11, ut12 = np.broadcast_arrays(tai1, tai2 + (dut1_s - tai_utc_s) / 86_400.0)
     extrapolated = _check_extrapolation(np.asarray(utc1), np.asarray(utc2))
     u1, u2, a1, a2, t1, t2, b1, b2 = (
         np.asarray(x, dtype=float) for x in (utc1, utc2, tai1, tai2, tt1, tt2, ut11, ut12)
