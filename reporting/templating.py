@@ -115,6 +115,7 @@ def inputs_side_by_side(inputs: list[dict[str, Any]]) -> list[dict[str, Any]]:
             sections.setdefault(section, []).append(
                 {
                     "field": field,
+                    "path": path,
                     "unit": unit_of(path),
                     "cells": [_cell(path, v) for v in values],
                     "differs": len(chunk) > 1 and any(v != values[0] for v in values),

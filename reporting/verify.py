@@ -18,6 +18,7 @@ in a clean kernel (after a warning) and compares its named results with the reco
 from __future__ import annotations
 
 import hashlib
+import html
 import json
 import math
 import re
@@ -42,6 +43,32 @@ _FIGURE_SCRIPT = re.compile(
     r'<script type="application/json" class="orbitledger-figure"[^>]*data-name="([^"]*)">(.*?)</script>',
     re.DOTALL,
 )
+
+
+# A value the HTML shows in its inputs and results tables, with the record entry it shows.
+_SHOWN_VALUE = re.compile(r'<td class="[^"]*" data-check="([^"]*)">([^<]*)</td>')
+
+
+def _expected_shown(record: dict[str, Any]) -> dict[str, str]:
+    """What the tables must show for each value of the record (the templates' formatting)."""
+    from .diff import flatten
+    from .templating import format_value
+
+    def text(value: Any) -> str:
+        return "—" if value is None else format_value(value)
+
+    out = {f"r|{r['name']}": text(r["value"]) for r in record.get("results", [])}
+    for block in record.get("standard_results", []):
+        for r in block["results"]:
+            out[f"s|{block['case']}|{r['name']}"] = text(r["value"])
+    for case in record.get("inputs", []):
+        try:
+            fields = flatten(json.loads(case["canonical"]))
+        except ValueError:
+            continue  # a broken canonical text is reported by the fingerprint check
+        for path, value in fields.items():
+            out[f"i|{case['name']}|{path}"] = text(value)
+    return out
 
 
 @dataclass(frozen=True)
@@ -100,7 +127,8 @@ def read_record(path: str | Path) -> tuple[dict[str, Any], dict[str, Any]]:
             "RECORD", str(path), f"the embedded record JSON does not parse: {err}"
         ) from None
     figures = [(name, json.loads(body)) for name, body in _FIGURE_SCRIPT.findall(text)]
-    return record, {"kind": "html", "figures": figures}
+    shown = [(html.unescape(k), html.unescape(v)) for k, v in _SHOWN_VALUE.findall(text)]
+    return record, {"kind": "html", "figures": figures, "shown": shown}
 
 
 def _read_pdf(path: Path) -> tuple[dict[str, Any], dict[str, Any]]:
@@ -250,6 +278,17 @@ def _check_extras(report: VerifyReport, record: dict[str, Any], extras: dict[str
                 same,
                 "" if same else "the drawn figure was altered",
             )
+        expected = _expected_shown(record)
+        shown = extras["shown"]
+        wrong = [(k, v) for k, v in shown if expected.get(k, "—") != v]  # "—": not in that case
+        detail = "; ".join(
+            f"{k.split('|', 1)[1].replace('|', ': ')} shows {v!r}, the record says {expected.get(k, '—')!r}"
+            for k, v in wrong[:5]
+        )
+        if not shown and expected:
+            detail = "the HTML tables show none of the record's values"
+        ok = not wrong and bool(shown) == bool(expected)
+        report.add(f"tables: {len(shown)} values shown as in the record", ok, detail)
         return
     att = extras["attachments"]
     nb_bytes = att.get("notebook.ipynb")

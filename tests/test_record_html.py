@@ -70,7 +70,10 @@ def test_every_section_of_the_record_is_there(built):
                  "Preliminary analysis with the stated models"):  # fmt: skip
         assert text in html, text
     # The case's altitude is listed with its unit (docs/case-file.md: altitude_km in km).
-    assert re.search(r">altitude_km</td><td class=\"unit\">km</td><td class=\"num\">540</td>", html)
+    assert re.search(
+        r">altitude_km</td><td class=\"unit\">km</td><td class=\"num\" data-check=\"[^\"]*\">540</td>",
+        html,
+    )
 
 
 def test_one_inlined_bokehjs_and_nothing_fetched(built):

@@ -106,8 +106,11 @@ def test_a_forged_standard_result_is_caught_by_recomputation(built, tmp_path):
         r["fingerprints"]["results"] = rec.results_fingerprint(r["results"], r["standard_results"])
 
     report = verify_file(_tampered(built, tmp_path, edit))
-    failed = [c for c in report.checks if not c.ok]
-    assert len(failed) == 1 and failed[0].detail.startswith("period_s: record")
+    failed = {c.what: c.detail for c in report.checks if not c.ok}
+    assert failed["standard result of candidate-a.case.json"].startswith("period_s: record")
+    # ... and the table still shows the value the record was built with.
+    assert "period_s shows" in next(v for k, v in failed.items() if k.startswith("tables:"))
+    assert len(failed) == 2
 
 
 def test_an_altered_figure_fails(built, tmp_path):
@@ -158,3 +161,17 @@ def test_execute_reruns_the_embedded_notebook(built, capsys):
     captured = capsys.readouterr()
     assert "runs the code embedded in this record" in captured.err
     assert "ok   --execute: result test_length_km" in captured.out
+
+
+def test_a_digit_changed_in_a_visible_table_fails(built, tmp_path, capsys):
+    # The embedded JSON untouched, the table a reader sees altered: verify compares the two.
+    html = built.files["html"].read_text(encoding="utf-8")
+    altered = html.replace(
+        'data-check="r|test_length_km">42.5<', 'data-check="r|test_length_km">42.6<'
+    )
+    assert altered != html
+    path = tmp_path / "shown.html"
+    path.write_text(altered, encoding="utf-8")
+    assert main(["verify", str(path)]) == 1
+    out = capsys.readouterr().out
+    assert "test_length_km shows '42.6', the record says '42.5'" in out
