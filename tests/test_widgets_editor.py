@@ -93,6 +93,24 @@ def test_figures_update_in_place(case_path: Path) -> None:
     assert plane.model is models[0]
 
 
+def test_budget_chart_updates_in_place_with_its_labels(case_path: Path) -> None:
+    editor = CaseEditor(orbitledger.open_case(case_path), window_results=False)
+    budget = next(f for f in editor._figures if f.name == "delta-v budget")
+    model, source = budget.model, budget._sources["lines"]
+    before = list(source.data["basis"])
+    editor.apply({"orbit.e": 0.004})  # a lower perigee: more drag make-up, another basis text
+    assert budget.model is model  # no rebuild: every drawn column comes from budget_data
+    cols = source.data
+    assert list(cols["basis"]) != before
+    # The bar labels follow the new values (with margin, m/s, one decimal), and the total row
+    # is the sum of the lines (common practice for a delta-v budget), to 1 mm/s.
+    assert cols["value_text"] == [f"{v:.1f} m/s" for v in cols["with_margin_m_s"]]
+    lines = [k for k, name in enumerate(cols["line"]) if name != "total"]
+    total = sum(cols["with_margin_m_s"][k] for k in lines)
+    assert abs(cols["with_margin_m_s"][-1] - total) < 1e-3
+    assert cols["total_hatch"][-1] == "/" and set(cols["total_hatch"][:-1]) == {" "}
+
+
 def test_opening_shows_the_case_and_its_results(editor: CaseEditor) -> None:
     assert editor.case.orbit.altitude_km == 540.0
     # r_p = a (1 - e), Vallado 4th ed. Eq. 2-57; R_eq from WGS-84.

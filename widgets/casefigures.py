@@ -76,17 +76,21 @@ def window_offsets_s(case: Any) -> np.ndarray:
 
 @dataclass(frozen=True, eq=False)
 class _RememberingTrajectory(Trajectory):
-    """A trajectory that remembers its last evaluation at an array of offsets: the ground
+    """A trajectory that remembers its last evaluations at arrays of offsets: the ground
     track, its time tags and the shadow flags all read the same epochs, so the propagation
     and the time-scale conversion (leap-second look-ups per epoch) run once per edit."""
 
     def _memo(self, key: str, t: Any, compute: Callable[[], Any]) -> Any:
+        # Keyed by the offsets array itself (kept, so its id is not reused): the Sun's coarse
+        # nodes in between do not push out the window's epochs.
         memo = self.__dict__.setdefault("_last", {})
-        hit = memo.get(key)
+        hit = memo.get((key, id(t)))
         if hit is not None and hit[0] is t:
             return hit[1]
         value = compute()
-        memo[key] = (t, value)
+        memo[(key, id(t))] = (t, value)
+        while len(memo) > 4:
+            del memo[next(iter(memo))]
         return value
 
     def times(self, offset_s: Any) -> Any:

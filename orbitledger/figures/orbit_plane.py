@@ -45,11 +45,6 @@ def shoelace_area_km2(x_km: np.ndarray, y_km: np.ndarray) -> np.ndarray:
     return 0.5 * np.abs(np.sum(x * np.roll(y, -1, axis=-1) - np.roll(x, -1, axis=-1) * y, axis=-1))
 
 
-def _perifocal(elements: Elements) -> Elements:
-    """The same conic with i = RAAN = argp = 0: its GCRF state is its perifocal state."""
-    return Elements(elements.a_km, elements.e, 0.0, 0.0, 0.0, elements.nu_deg)
-
-
 def _checked(elements: Any, index: int) -> Elements:
     if not isinstance(elements, Elements):
         raise InputError(f"orbits[{index}]", type(elements).__name__, "must be kernel Elements")
@@ -96,7 +91,7 @@ def _sweep_times(elements: Elements, summary, mu: float, sectors: int) -> tuple[
     return np.linspace(-t_max, t_max, sectors + 1), 2.0 * t_max
 
 
-def _sectors(elements: Elements, summary, mu: float, sectors: int) -> dict[str, Any]:
+def _sectors(elements: Elements, summary, mu: float, sectors: int, pal: Palette) -> dict[str, Any]:
     times, span = _sweep_times(elements, summary, mu, sectors)
     periapsis = Elements(float(elements.a_km), float(elements.e), 0.0, 0.0, 0.0, 0.0)
     r0, v0 = kernel.elements_to_state(periapsis, mu_km3_s2=mu)
@@ -124,7 +119,23 @@ def _sectors(elements: Elements, summary, mu: float, sectors: int) -> dict[str, 
         "area_km2": area,
         "kepler_area_km2": np.full(sectors, 0.5 * h * duration),
         "fill": [k % 2 for k in range(sectors)],
+        "colour": [pal.sector_fills[k % 2] for k in range(sectors)],
         "span_s": np.full(sectors, span),
+    }
+
+
+def _apsides(a: float, e: float, radius_km: float, pal: Palette) -> dict[str, list]:
+    """Periapsis (and, for an ellipse, apoapsis) on the apse line, with marker and colour."""
+    radii = [a * (1.0 - e)] + ([a * (1.0 + e)] if e < 1.0 else [])
+    n = len(radii)
+    return {
+        "x_km": [radii[0], *(-r for r in radii[1:])],
+        "y_km": [0.0] * n,
+        "name": ["periapsis", "apoapsis"][:n],
+        "r_km": radii,
+        "alt_km": [r - radius_km for r in radii],
+        "marker": ["diamond", "square"][:n],
+        "colour": [pal.periapsis, pal.apoapsis][:n],
     }
 
 
@@ -141,9 +152,8 @@ def orbit_plane_data(
     ``orbits``: one kernel ``Elements`` or a sequence (elliptic or hyperbolic; scalar fields),
     about ``body``. The true anomaly ``nu_deg`` places the current position. Equal-time sweep
     sectors (``sectors`` >= 2, 0 for none) are drawn for the orbit at index ``sweep_orbit``.
-    Every column the view draws is here, styling included (the sectors' and apsides'
-    ``colour`` in the ``theme``'s palette, the apsides' ``marker``), so that a live view
-    updates the figure in place from this data alone.
+    Every drawn column is here, styling too (colours of the ``theme``'s palette, the apsides'
+    markers), so that a live view updates the figure in place from this data alone.
     """
     pal = palette_for(theme)
     orbits = as_list(orbits, lambda o: isinstance(o, Elements))
@@ -158,41 +168,20 @@ def orbit_plane_data(
         a, e = float(el.a_km), float(el.e)
         summary = kernel.orbit_summary(el, body=body)
         data[f"conic-{k}"] = _conic(el, mu, radius)
-        r_now, v_now = (
-            np.asarray(x) for x in kernel.elements_to_state(_perifocal(el), mu_km3_s2=mu)
-        )
+        # The same conic with i = RAAN = argp = 0: its GCRF state is its perifocal state.
+        flat = Elements(el.a_km, el.e, 0.0, 0.0, 0.0, el.nu_deg)
+        r_now, v_now = map(np.asarray, kernel.elements_to_state(flat, mu_km3_s2=mu))
         r_p = a * (1.0 - e)
         b = abs(a) * math.sqrt(abs(1.0 - e * e))
         centre = -a * e
-        apsides = {
-            "x_km": [r_p],
-            "y_km": [0.0],
-            "name": ["periapsis"],
-            "r_km": [r_p],
-            "alt_km": [r_p - radius],
-        }
-        if e < 1.0:
-            r_a = a * (1.0 + e)
-            for key, val in (
-                ("x_km", -r_a),
-                ("y_km", 0.0),
-                ("name", "apoapsis"),
-                ("r_km", r_a),
-                ("alt_km", r_a - radius),
-            ):
-                apsides[key].append(val)
-            apse_x = [r_p, -r_a]
-        else:
-            apse_x = [r_p, 0.0]  # the hyperbola's apse line: focus to vertex
-        count = len(apsides["name"])
-        apsides["marker"] = ["diamond", "square"][:count]
-        apsides["colour"] = [pal.periapsis, pal.apoapsis][:count]
-        data[f"apsides-{k}"] = apsides
+        data[f"apsides-{k}"] = _apsides(a, e, radius, pal)
         data[f"foci-{k}"] = {
             "x_km": [0.0, -2.0 * a * e],
             "y_km": [0.0, 0.0],
             "name": [f"occupied focus ({body.name})", "empty focus"],
         }
+        # The apse line: periapsis to apoapsis; for a hyperbola, vertex to focus.
+        apse_x = [r_p, -a * (1.0 + e) if e < 1.0 else 0.0]
         data[f"apse-{k}"] = {"x_km": apse_x, "y_km": [0.0, 0.0]}
         # Semi-axes from the centre of the conic: a along the apse line to the vertex,
         # b perpendicular to it (for a hyperbola, the conjugate semi-axis).
@@ -221,9 +210,7 @@ def orbit_plane_data(
             "y_end": [r_now[1] + scale * v_now[1]],
         }
         if sectors and k == sweep_orbit:
-            swept = _sectors(el, summary, mu, int(sectors))
-            swept["colour"] = [pal.sector_fills[f] for f in swept["fill"]]
-            data["sectors"] = swept
+            data["sectors"] = _sectors(el, summary, mu, int(sectors), pal)
     theta = np.linspace(0.0, 2.0 * np.pi, 181)
     data["body"] = {"x_km": radius * np.cos(theta), "y_km": radius * np.sin(theta)}
     return data
