@@ -13,6 +13,7 @@ Run: /work/venv/bin/python benchmarks/bench_editor.py [--edits N]
 from __future__ import annotations
 
 import argparse
+import json
 import shutil
 import statistics
 import tempfile
@@ -24,6 +25,23 @@ from orbitledger.widgets import CaseEditor
 import orbitledger
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "examples" / "candidate-a.case.json"
+
+
+def _traffic_of_one_edit(editor: CaseEditor) -> tuple[int, int]:
+    """Messages and bytes (JSON text plus binary buffers) the figures send for one more edit."""
+    count = [0, 0]
+    for fig in editor._figures:
+        view = fig.view
+
+        def send(content, buffers=None, view=view) -> None:
+            count[0] += 1
+            count[1] += len(json.dumps(content)) + sum(len(b) for b in buffers or [])
+
+        view.send = send
+    editor.apply({"orbit.e": 0.0042})
+    for fig in editor._figures:
+        del fig.view.send  # back to the widget's own method
+    return count[0], count[1]
 
 
 def bench(propagator: str, edits: int) -> dict[str, float]:
@@ -53,7 +71,12 @@ def bench(propagator: str, edits: int) -> dict[str, float]:
                 - editor.timings["figure_data_s"]
                 - editor.timings["widget_s"]
             )
-        out = {"median_s": statistics.median(total)}
+        sent = _traffic_of_one_edit(editor)
+        out = {
+            "median_s": statistics.median(total),
+            "sent_bytes": sent[1],
+            "sent_messages": sent[0],
+        }
         out.update({key: statistics.median(values) for key, values in parts.items()})
         out.update({f"figure {k}": statistics.median(v) for k, v in per_figure.items()})
         return out
@@ -82,6 +105,10 @@ def main() -> None:
             f"             kernel {ms['kernel_s']:5.1f} ms | figure data {ms['figure_data_s']:5.1f}"
             f" ms | widget traffic {ms['widget_s']:5.1f} ms | validate + save "
             f"{ms['save_s']:5.1f} ms"
+        )
+        print(
+            f"             sent per edit: {r['sent_messages']:.0f} messages, "
+            f"{r['sent_bytes'] / 1024:.0f} KiB (column data as binary buffers)"
         )
         figures = ", ".join(f"{k[7:]} {v:.1f}" for k, v in ms.items() if k.startswith("figure "))
         print(f"             per figure, data + sync (ms): {figures}")

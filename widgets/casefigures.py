@@ -94,7 +94,11 @@ class _RememberingTrajectory(Trajectory):
         return value
 
     def times(self, offset_s: Any) -> Any:
-        return self._memo("times", offset_s, lambda: Trajectory.times(self, offset_s))
+        return self._memo(
+            "times",
+            offset_s,
+            lambda: _same_window(self, "times", offset_s, lambda: Trajectory.times(self, offset_s)),
+        )
 
     def gcrf(self, offset_s: Any) -> tuple[np.ndarray, np.ndarray]:
         return self._memo("gcrf", offset_s, lambda: Trajectory.gcrf(self, offset_s))
@@ -113,9 +117,32 @@ _SUN_NODE_S = 1800.0
 
 
 def _sun_positions_km(traj: Any, t: np.ndarray) -> np.ndarray:
-    nodes = np.arange(0.0, float(t[-1]) + _SUN_NODE_S, _SUN_NODE_S)
-    at_nodes = sun_position_gcrf_km(traj.times(nodes)).reshape(-1, 3)
-    return np.stack([np.interp(t, nodes, at_nodes[:, k]) for k in range(3)], axis=-1)
+    def compute() -> np.ndarray:
+        nodes = np.arange(0.0, float(t[-1]) + _SUN_NODE_S, _SUN_NODE_S)
+        at_nodes = sun_position_gcrf_km(traj.times(nodes)).reshape(-1, 3)
+        return np.stack([np.interp(t, nodes, at_nodes[:, k]) for k in range(3)], axis=-1)
+
+    return _same_window(traj, "sun", t, compute)
+
+
+_windows: dict[tuple, tuple[np.ndarray, Any]] = {}
+
+
+def _same_window(traj: Any, what: str, t: np.ndarray, compute: Callable[[], Any]) -> Any:
+    """``compute()``, shared by the cases whose window is the same: same start (TAI), dUT1 and
+    sample times. The epochs' time scales and the Sun's positions depend on nothing else, so
+    an edit of the orbit reuses them; the last few windows are kept."""
+    t = np.asarray(t, dtype=float)
+    start = traj.start
+    key = (what, float(start.tai1), float(start.tai2), traj.eop.dut1_s, t.shape, hash(t.tobytes()))
+    hit = _windows.get(key)
+    if hit is not None and np.array_equal(hit[0], t):
+        return hit[1]
+    value = compute()
+    _windows[key] = (t.copy(), value)
+    while len(_windows) > 8:
+        del _windows[next(iter(_windows))]
+    return value
 
 
 def _window_inputs(case: Any) -> tuple[Any, np.ndarray]:
