@@ -123,6 +123,7 @@ def _print_page(browser: Any, html: str, record: dict[str, Any]) -> bytes:
         page_file = Path(tmp) / "record.html"
         page_file.write_text(html, encoding="utf-8")
         page = browser.new_page()
+        page.add_init_script("window.orbitledgerPrintMode = true;")
         page.route(
             "**/*",
             lambda route: (
@@ -203,12 +204,13 @@ class PdfPrinter:
 
 def attach(pdf: bytes, record: dict[str, Any], notebook: bytes) -> bytes:
     """The PDF with metadata and attachments: record JSON, executed notebook, case files."""
-    from pypdf import PdfReader, PdfWriter
+    from pypdf import PdfWriter
 
     # Chromium's PDFs make pypdf warn about the trailer's object count: harmless, not for users.
     logging.getLogger("pypdf").setLevel(logging.ERROR)
 
-    writer = PdfWriter(clone_from=PdfReader(io.BytesIO(pdf)))
+    # An incremental update: Chromium's PDF stays as printed, the additions follow it.
+    writer = PdfWriter(io.BytesIO(pdf), incremental=True)
     rev = record.get("revision")
     label = str(rev) if rev is not None else "unrecorded"
     writer.add_metadata(

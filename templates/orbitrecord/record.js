@@ -15,8 +15,20 @@
   body.dataset.figureCount = String(specs.length);
   if (specs.length === 0) { body.dataset.figures = "ready"; return; }
   if (typeof window.Bokeh === "undefined") { body.dataset.figures = "failed: BokehJS missing"; return; }
+  /* Printing (the PDF printer sets orbitledgerPrintMode before the page loads): plots
+     without toolbars, whose buttons mean nothing on paper. */
+  function withoutToolbars(node) {
+    if (Array.isArray(node)) { node.forEach(withoutToolbars); return; }
+    if (!node || typeof node !== "object") { return; }
+    if (node.type === "object" && /^(Figure|Plot|GMapPlot|GridPlot)$/.test(node.name)) {
+      node.attributes = node.attributes || {};
+      node.attributes.toolbar_location = null;
+    }
+    Object.keys(node).forEach(function (key) { withoutToolbars(node[key]); });
+  }
   var pending = specs.map(function (el) {
     var item = JSON.parse(el.textContent);
+    if (window.orbitledgerPrintMode) { withoutToolbars(item); }
     return Promise.resolve(window.Bokeh.embed.embed_item(item, el.dataset.target));
   });
   function painted() {  /* two animation frames after the views exist: the canvases are drawn */
@@ -29,18 +41,8 @@
   }).catch(function (err) {
     body.dataset.figures = "failed: " + err;
   });
-  /* For print: no toolbars (buttons mean nothing on paper), wide figures fitted to the
-     page width; resolves once the figures have been drawn again. */
+  /* For print: wide figures fitted to the page width; resolves once drawn again. */
   window.orbitledgerPrepareForPrint = function (widthPx) {
-    if (window.Bokeh && window.Bokeh.documents) {
-      window.Bokeh.documents.forEach(function (doc) {
-        doc.all_models.forEach(function (model) {
-          if ("toolbar_location" in model && model.toolbar_location !== null) {
-            model.toolbar_location = null;
-          }
-        });
-      });
-    }
     return painted().then(function () {
       document.querySelectorAll(".figure-host").forEach(function (host) {
         var inner = host.firstElementChild;
