@@ -7,9 +7,9 @@ reads a global setting, so a study can state a different model explicitly.
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from types import MappingProxyType
-from typing import Mapping
 
 __all__ = [
     "Body",
