@@ -130,8 +130,8 @@ def _print_page(browser: Any, html: str, record: dict[str, Any]) -> bytes:
                 route.continue_() if route.request.url.startswith("file:") else route.abort()
             ),
         )
+        page.emulate_media(media="print")  # before loading: the figures draw once, for print
         page.goto(page_file.as_uri(), wait_until="load")
-        page.emulate_media(media="print")
         wait_for_figures(page)
         page.evaluate(f"window.orbitledgerPrepareForPrint({_PRINT_WIDTH_PX})")
         pdf = page.pdf(
