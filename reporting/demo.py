@@ -8,6 +8,7 @@ Kestrel-2 satellite of the Fenwick Orbital Lab). It is copied to ``OUT/study/`` 
 from __future__ import annotations
 
 import shutil
+from importlib import resources
 from pathlib import Path
 
 from orbitledger.kernel.errors import InputError
@@ -20,11 +21,11 @@ EXAMPLE_NOTEBOOK = "kestrel2-orbit-study.ipynb"
 
 
 def example_folder() -> Path:
-    """The folder holding the example study (the repository's ``examples/``, or package data)."""
-    here = Path(__file__).resolve().parent
-    for candidate in (here.parent / "examples", here.parent / "orbitledger" / "data" / "examples"):
-        if (candidate / EXAMPLE_NOTEBOOK).is_file():
-            return candidate
+    """The folder holding the example study: the repository's ``examples/``, installed as the
+    package ``orbitledger.examples`` (an editable install and a wheel alike)."""
+    candidate = Path(str(resources.files("orbitledger.examples")))
+    if (candidate / EXAMPLE_NOTEBOOK).is_file():
+        return candidate
     raise InputError(
         "demo", EXAMPLE_NOTEBOOK, "the example study is not installed with this orbitledger"
     )
