@@ -153,13 +153,14 @@ def test_sign_off_writes_a_signed_copy_and_keeps_the_original(built, capsys):
 def test_the_nbconvert_exporter_is_offered_by_name():
     from importlib.metadata import entry_points
 
+    # Registered in pyproject.toml under [project.entry-points."nbconvert.exporters"].
     names = {ep.name for ep in entry_points(group="nbconvert.exporters")}
-    if "orbitrecord" not in names:
-        pytest.skip("entry point not installed yet (pyproject: nbconvert.exporters orbitrecord)")
+    assert {"orbitrecord", "orbitrecord_pdf"} <= names
     from nbconvert.exporters import get_exporter
-    from orbitledger.reporting.exporter import OrbitRecordExporter
+    from orbitledger.reporting.exporter import OrbitRecordExporter, OrbitRecordPDFExporter
 
     assert get_exporter("orbitrecord") is OrbitRecordExporter
+    assert get_exporter("orbitrecord_pdf") is OrbitRecordPDFExporter
 
 
 @pytest.mark.slow
