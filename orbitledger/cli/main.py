@@ -18,13 +18,13 @@ from ..kernel.errors import InputError
 
 # The verbs modules, in the order their verbs appear in ``--help``.
 VERB_MODULES = [
-    "orbitledger.cli.case_verbs",
-    "orbitledger.cli.design_verbs",
-    "orbitledger.cli.lifetime_verbs",
-    "orbitledger.cli.report_verbs",
-    "orbitledger.cli.environment_verbs",
-    "orbitledger.cli.exchange_verbs",
-    "orbitledger.cli.trade_verbs",
+    "orbitledger.cli.case_verbs",  # new, summary, schema
+    "orbitledger.cli.environment_verbs",  # passes, eclipses, groundtrack, ephemeris
+    "orbitledger.cli.lifetime_verbs",  # lifetime
+    "orbitledger.cli.design_verbs",  # budget, transfer
+    "orbitledger.cli.exchange_verbs",  # import, export, ephemeris-diff
+    "orbitledger.cli.trade_verbs",  # sweep, disperse
+    "orbitledger.cli.report_verbs",  # build, history, diff, sign, verify, demo
 ]
 
 
