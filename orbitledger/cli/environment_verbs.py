@@ -160,7 +160,7 @@ def run_passes(args: argparse.Namespace) -> int:
         "max el (deg)",
         "LOS (UTC)",
         "az (deg)",
-        "min",
+        "duration (min)",
     ]
     lines = _preamble(data) + _table(heads, rows) + [""]
     daily = [
