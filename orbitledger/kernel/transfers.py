@@ -16,7 +16,7 @@ for Engineering Students*, 3rd ed. (2014), Secs. 6.2-6.7.
 from __future__ import annotations
 
 import math
-from typing import Any, NamedTuple
+from typing import Any, NamedTuple, TypeVar
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -40,20 +40,29 @@ __all__ = [
 _MU_EARTH = EARTH.mu_km3_s2
 
 
-def _getitem(self: tuple, key: Any) -> Any:
-    """Index a result by position or by field name."""
-    if isinstance(key, str):
-        try:
-            return getattr(self, key)
-        except AttributeError:
-            raise KeyError(key) from None
-    return tuple.__getitem__(self, key)
+_Result = TypeVar("_Result", bound=type)
 
 
-def _keys(self: tuple) -> tuple[str, ...]:
-    return self._fields  # type: ignore[attr-defined]
+def _by_name(cls: _Result) -> _Result:
+    """Let a NamedTuple result be read by field name too: ``res["tof_s"]``, ``res.keys()``."""
+
+    def __getitem__(self: tuple, key: Any) -> Any:
+        if isinstance(key, str):
+            try:
+                return getattr(self, key)
+            except AttributeError:
+                raise KeyError(key) from None
+        return tuple.__getitem__(self, key)
+
+    def keys(self: tuple) -> tuple[str, ...]:
+        return self._fields  # type: ignore[attr-defined]
+
+    cls.__getitem__ = __getitem__  # type: ignore[attr-defined, index]
+    cls.keys = keys  # type: ignore[attr-defined]
+    return cls
 
 
+@_by_name
 class HohmannTransfer(NamedTuple):
     """Two tangential burns and the half-ellipse between them (magnitudes, km/s; s)."""
 
@@ -62,13 +71,8 @@ class HohmannTransfer(NamedTuple):
     dv_total_km_s: Any
     tof_s: Any
 
-    def __getitem__(self, key: Any) -> Any:  # type: ignore[override]
-        return _getitem(self, key)
 
-    def keys(self) -> tuple[str, ...]:
-        return _keys(self)
-
-
+@_by_name
 class BiellipticTransfer(NamedTuple):
     """Three tangential burns through the intermediate apoapsis rb (magnitudes, km/s; s)."""
 
@@ -78,13 +82,8 @@ class BiellipticTransfer(NamedTuple):
     dv_total_km_s: Any
     tof_s: Any
 
-    def __getitem__(self, key: Any) -> Any:  # type: ignore[override]
-        return _getitem(self, key)
 
-    def keys(self) -> tuple[str, ...]:
-        return _keys(self)
-
-
+@_by_name
 class CombinedPlaneChange(NamedTuple):
     """A Hohmann transfer with the inclination change split between its two burns."""
 
@@ -95,13 +94,8 @@ class CombinedPlaneChange(NamedTuple):
     di1_deg: Any
     di2_deg: Any
 
-    def __getitem__(self, key: Any) -> Any:  # type: ignore[override]
-        return _getitem(self, key)
 
-    def keys(self) -> tuple[str, ...]:
-        return _keys(self)
-
-
+@_by_name
 class PhasingManoeuvre(NamedTuple):
     """Leave a circular orbit into a phasing ellipse and return to it after k revolutions."""
 
@@ -111,12 +105,6 @@ class PhasingManoeuvre(NamedTuple):
     tof_s: Any
     a_phasing_km: Any
     phase_angle_deg: Any
-
-    def __getitem__(self, key: Any) -> Any:  # type: ignore[override]
-        return _getitem(self, key)
-
-    def keys(self) -> tuple[str, ...]:
-        return _keys(self)
 
 
 def _out(x: np.ndarray) -> Any:
