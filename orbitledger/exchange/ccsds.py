@@ -36,6 +36,7 @@ __all__ = [
     "creation_time",
     "kvn_lines",
     "kvn_number",
+    "message_lines",
     "number_text",
     "state_to_gcrf",
 ]
@@ -98,6 +99,16 @@ def kvn_lines(text: str) -> list[KvnLine]:
             value, unit = u.group(1), u.group(2).strip()
         out.append(KvnLine(number, m.group(1), value, unit, line))
     return out
+
+
+def message_lines(text: str, version_keyword: str, reason: str) -> list[KvnLine]:
+    """``kvn_lines`` of a message whose first line (after comments) must be its version
+    keyword (``CCSDS_OPM_VERS``, ``CCSDS_OEM_VERS``); ``reason`` says so when it is not."""
+    lines = kvn_lines(text)
+    first = next((ln for ln in lines if ln.keyword != "COMMENT"), None)
+    if first is None or first.keyword != version_keyword:
+        raise InputError(where(first.number if first else 1), first.text if first else "", reason)
+    return lines
 
 
 def where(line: KvnLine | int, keyword: str = "") -> str:

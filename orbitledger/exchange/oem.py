@@ -31,8 +31,8 @@ from .ccsds import (
     check_frame,
     check_time_system,
     creation_time,
-    kvn_lines,
     kvn_number,
+    message_lines,
     number_text,
     where,
 )
@@ -142,14 +142,11 @@ def _segment(meta: list[KvnLine], data: list[KvnLine], comments: list[str]) -> O
 
 def parse_oem(text: str) -> Oem:
     """Read an OEM in KVN form (CCSDS 502.0-B-2 Sec. 5 and 7); see the module docstring."""
-    lines = kvn_lines(text)
-    first = next((ln for ln in lines if ln.keyword != "COMMENT"), None)
-    if first is None or first.keyword != "CCSDS_OEM_VERS":
-        raise InputError(
-            where(first.number if first else 1),
-            first.text if first else "",
-            "an OEM begins with CCSDS_OEM_VERS = 2.0 (CCSDS 502.0-B-2, Table 5-2)",
-        )
+    lines = message_lines(
+        text,
+        "CCSDS_OEM_VERS",
+        "an OEM begins with CCSDS_OEM_VERS = 2.0 (CCSDS 502.0-B-2, Table 5-2)",
+    )
     header: dict[str, KvnLine] = {}
     segments: list[OemSegment] = []
     comments: list[str] = []

@@ -24,8 +24,8 @@ from .ccsds import (
     ccsds_epoch_utc,
     check_frame,
     check_time_system,
-    kvn_lines,
     kvn_number,
+    message_lines,
     state_to_gcrf,
     utc_scales,
     where,
@@ -154,14 +154,11 @@ def _missing(key: str, at_line: int, block: str) -> InputError:
 
 def parse_opm(text: str) -> Opm:
     """Read an OPM in KVN form (CCSDS 502.0-B-2 Sec. 3 and 7); see the module docstring."""
-    lines = kvn_lines(text)
-    first = next((ln for ln in lines if ln.keyword != "COMMENT"), None)
-    if first is None or first.keyword != "CCSDS_OPM_VERS":
-        raise InputError(
-            where(first.number if first else 1),
-            first.text if first else "",
-            "an OPM begins with CCSDS_OPM_VERS = 2.0 (CCSDS 502.0-B-2, Table 3-1)",
-        )
+    lines = message_lines(
+        text,
+        "CCSDS_OPM_VERS",
+        "an OPM begins with CCSDS_OPM_VERS = 2.0 (CCSDS 502.0-B-2, Table 3-1)",
+    )
     values: dict[str, KvnLine] = {}
     maneuvers: list[list[KvnLine]] = []
     comments: list[str] = []
