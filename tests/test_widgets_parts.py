@@ -152,3 +152,12 @@ def test_sync_model_updates_sources_and_ranges_in_place() -> None:
     other = build(2)
     other.scatter([1], [1])
     assert not sync_model(screen, other)  # another structure: the caller rebuilds
+
+
+def test_every_result_group_has_a_panel_title():
+    # The panel and the trade view title each group of orbitledger.analysis.
+    from orbitledger.widgets.results import GROUP_TITLES
+
+    from orbitledger.analysis import ALL_GROUPS
+
+    assert set(GROUP_TITLES) == set(ALL_GROUPS)

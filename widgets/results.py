@@ -15,20 +15,18 @@ import ipywidgets as w
 
 __all__ = ["GROUP_TITLES", "ResultsPanel", "format_value", "results_table_html"]
 
+# One title per result group of orbitledger.analysis (ALL_GROUPS).
 GROUP_TITLES = {
     "orbit": "Two-body orbit",
     "j2": "J2 drift and sun-synchronous condition",
-    "eclipse": "Eclipses",
     "eclipses": "Eclipses",
-    "passes": "Station contact",
-    "contact": "Station contact",
+    "contacts": "Station contact",
     "lifetime": "Lifetime",
     "budget": "Delta-v budget",
-    "burns": "Burn plan",
 }
 
 # Groups whose numbers could feed a disposal or re-entry decision (rules: safety caution).
-_CAUTION_GROUPS = {"lifetime", "budget", "disposal"}
+_CAUTION_GROUPS = {"lifetime", "budget"}
 CAUTION = (
     "Preliminary analysis with the stated models. Lifetime and disposal figures carry large "
     "uncertainty (solar activity); defer to authoritative ephemerides and data, the licensing "
