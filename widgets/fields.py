@@ -105,6 +105,9 @@ class FieldParseError(ValueError):
         self.reason = reason
         super().__init__(f"{path} = {text!r}: {reason}")
 
+    def __reduce__(self):  # picklable like every error of the package
+        return (type(self), (self.path, self.text, self.reason))
+
 
 class Field:
     """Base of the field widgets: path, label, unit, error line and the edit callback.

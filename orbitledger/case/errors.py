@@ -55,12 +55,21 @@ class CaseError(InputError):
     def __reduce__(self):  # picklable (dask workers, multiprocessing) despite keyword arguments
         return (
             _rebuild,
-            (type(self), self.field, self.value, self.reason, self.file, self.line, self.column),
+            (
+                type(self),
+                self.field,
+                self.value,
+                self.reason,
+                self.file,
+                self.line,
+                self.column,
+                self.others,
+            ),
         )
 
 
-def _rebuild(cls, field, value, reason, file, line, column):
-    return cls(field, value, reason, file=file, line=line, column=column)
+def _rebuild(cls, field, value, reason, file, line, column, others=()):
+    return cls(field, value, reason, file=file, line=line, column=column, others=others)
 
 
 class CaseFileChanged(CaseError):

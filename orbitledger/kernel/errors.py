@@ -32,6 +32,13 @@ class InputError(ValueError):
     def __str__(self) -> str:
         return self.message
 
+    def __reduce__(self):  # picklable (Dask workers, multiprocessing) despite keyword arguments
+        return (_rebuild, (type(self), self.field, self.value, self.reason, self.file))
+
+
+def _rebuild(cls, field, value, reason, file):
+    return cls(field, value, reason, file=file)
+
 
 def _short_repr(value: Any) -> str | None:
     if value is _MISSING:
@@ -43,6 +50,9 @@ def _short_repr(value: Any) -> str | None:
 class _Missing:
     def __repr__(self) -> str:
         return "<missing>"
+
+    def __reduce__(self) -> str:  # unpickles as the one MISSING, so ``is MISSING`` still holds
+        return "_MISSING"
 
 
 _MISSING = _Missing()
