@@ -6,10 +6,21 @@ calculation records that carry every input and verify from the file alone.
 
 from __future__ import annotations
 
+from typing import Any
+
 from ._version import __version__
-from .study import result
 
 __all__ = ["__version__", "open_case", "result"]
+
+
+def __getattr__(name: str) -> Any:
+    # ``result`` (and the study registry with it) is imported on first use, so that a bare
+    # ``import orbitledger`` -- the command line's ``--version`` -- imports nothing heavy.
+    if name == "result":
+        from .study import result
+
+        return result
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
 def open_case(path):

@@ -11,9 +11,6 @@ import json
 import math
 from typing import Any
 
-from ..analysis.manoeuvres import budget_data, budget_for_case, json_ready
-from ..kernel.errors import InputError
-
 __all__ = ["budget_table", "register"]
 
 
@@ -49,6 +46,7 @@ def budget_table(data: dict[str, Any]) -> str:
 
 
 def run_budget(args: argparse.Namespace) -> int:
+    from ..analysis.manoeuvres import budget_data, budget_for_case
     from ..case import load_case
 
     case = load_case(args.case)
@@ -65,6 +63,7 @@ def run_budget(args: argparse.Namespace) -> int:
 
 def _body(name: str):
     from ..kernel.constants import BODIES
+    from ..kernel.errors import InputError
 
     try:
         return BODIES[name.lower()]
@@ -73,6 +72,8 @@ def _body(name: str):
 
 
 def _result_dict(res: Any) -> dict[str, Any]:
+    from ..analysis.manoeuvres import json_ready
+
     return {k: json_ready(res[k]) for k in res.keys()}
 
 
@@ -91,6 +92,8 @@ _OPTION_OF = {
 
 def run_transfer(args: argparse.Namespace) -> int:
     """The ``transfer`` verb; a refused value is reported under its command-line option."""
+    from ..kernel.errors import InputError
+
     try:
         return _transfer(args)
     except InputError as err:
@@ -108,6 +111,7 @@ def run_transfer(args: argparse.Namespace) -> int:
 
 
 def _transfer(args: argparse.Namespace) -> int:
+    from ..analysis.manoeuvres import json_ready
     from ..kernel import transfers
     from ..kernel.lambert import lambert, solve_lambert
 

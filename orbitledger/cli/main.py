@@ -14,7 +14,6 @@ import sys
 from collections.abc import Sequence
 
 from .._version import __version__
-from ..kernel.errors import InputError
 
 # The verbs modules, in the order their verbs appear in ``--help``.
 VERB_MODULES = [
@@ -60,6 +59,8 @@ def main(argv: Sequence[str] | None = None) -> int:
     if not getattr(args, "run", None):
         parser.print_help()
         return 2
+    from ..kernel.errors import InputError  # after parsing: --version and --help import no kernel
+
     try:
         return int(args.run(args) or 0)
     except (InputError, UsageError) as err:
