@@ -27,6 +27,7 @@ from . import record as rec
 from .diff import diff_records, summary_lines
 from .figure_items import item_fingerprint
 from .run import FIGURE_MIME, MANIFEST_MIME, BuildError, execute_study, read_notebook
+from .safe_bokeh import UnsafeFigure, safe_item
 
 __all__ = [
     "FIGURE_MIME",
@@ -100,23 +101,18 @@ def _figures(nb: Any) -> list[dict[str, Any]]:
         for output in cell.get("outputs", []):
             fig = output.get("data", {}).get(FIGURE_MIME)
             if fig:
+                try:  # the record draws the figure as safe_item leaves it (safe_bokeh)
+                    item = safe_item(fig["item"], fig["name"])
+                except UnsafeFigure as err:
+                    raise BuildError(str(err)) from None
                 out.append(
                     {
                         "name": fig["name"],
                         "caption": fig.get("caption", ""),
-                        "sha256": item_fingerprint(fig["item"]),
+                        "sha256": item_fingerprint(item),
                     }
                 )
     return out
-
-
-def _tagged_markdown(nb: Any, tag: str) -> str:
-    parts = [
-        c.source
-        for c in nb.cells
-        if c.cell_type == "markdown" and tag in c.metadata.get("tags", [])
-    ]
-    return "\n\n".join(parts)
 
 
 def _first_heading(nb: Any) -> str:
@@ -146,13 +142,7 @@ def assemble_record(
     )
     title = own.get("title") or _first_heading(executed) or first.get("title") or nb_path.stem
     author = own.get("author") or first.get("author") or ""
-    decision_md = _tagged_markdown(executed, "decision")
-    decision = {
-        "decision": decision_md or first.get("decision", ""),
-        "rationale": _tagged_markdown(executed, "rationale") or first.get("rationale", ""),
-        "alternatives": [a for m in metas for a in m.get("alternatives", [])],
-        "source": "notebook cells tagged decision/rationale" if decision_md else "case meta",
-    }
+    decision = rec.decision_of(rec.notebook_cells(executed), metas)
     named = manifest["results"]
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")

@@ -28,6 +28,8 @@ from traitlets import default
 
 from .build import FIGURE_MIME
 from .figure_items import drawable_item
+from .record_text import show_controls
+from .safe_bokeh import safe_item
 from .templating import record_context
 
 __all__ = [
@@ -91,12 +93,12 @@ _SCRIPT_OR_STYLE = re.compile(r"<(script|style)\b.*?</\1\s*>", re.IGNORECASE | r
 
 def sanitize_html(text: str) -> Markup:
     """User HTML with scripts, event handlers, styles and unsafe URLs removed."""
-    return Markup(_cleaner.clean(_SCRIPT_OR_STYLE.sub("", str(text))))
+    return Markup(_cleaner.clean(_SCRIPT_OR_STYLE.sub("", show_controls(str(text)))))
 
 
 def safe_markdown(text: str) -> Markup:
     """Markdown to HTML with raw HTML shown as text, then cleaned (links: http/https/mailto)."""
-    return Markup(_cleaner.clean(_markdown(str(text))))
+    return Markup(_cleaner.clean(_markdown(show_controls(str(text)))))
 
 
 def json_for_script(value: Any) -> Markup:
@@ -118,6 +120,7 @@ def prepare_outputs(nb: Any) -> Any:
     nb = copy.deepcopy(nb)
     number = 0
     for cell in nb.cells:
+        cell.source = show_controls(cell.source)  # bidi controls shown, never applied
         if cell.cell_type != "code":
             continue
         kept = []
@@ -129,7 +132,7 @@ def prepare_outputs(nb: Any) -> Any:
             if FIGURE_MIME in data:
                 number += 1
                 fig = dict(data[FIGURE_MIME])
-                fig["item"] = drawable_item(fig["item"])
+                fig["item"] = drawable_item(safe_item(fig["item"], fig.get("name", "")))
                 output["data"] = {FIGURE_MIME: fig}
                 output.setdefault("metadata", {})["orbitledger_figure_number"] = number
             elif RESULT_MIME in data:
@@ -191,6 +194,8 @@ class OrbitRecordExporter(HTMLExporter):
     def _create_environment(self) -> Any:
         env = super()._create_environment()
         env.autoescape = True
+        # Every plain value shows its bidi controls as marks (Markup from our filters did so).
+        env.finalize = lambda v: show_controls(v) if type(v) is str else v
         return env
 
     def default_filters(self) -> Any:
@@ -208,9 +213,12 @@ class OrbitRecordExporter(HTMLExporter):
         record = resources.get("orbitledger_record")
         if record is None:
             nb, record = self._run_study(nb, resources)
+        from .record_page import seal
+
         prepared = prepare_outputs(nb)
         resources["orbitledger"] = record_context(record, prepared)
-        return self._render(prepared, resources, **kw)
+        body, resources = self._render(prepared, resources, **kw)
+        return seal(body, record), resources
 
     def _render(self, nb: Any, resources: dict[str, Any], **kw: Any) -> Any:
         """HTMLExporter's rendering without its BeautifulSoup pass over the page.

@@ -32,6 +32,7 @@ __all__ = [
     "RECORD_SCHEMA",
     "canonical_dumps",
     "cautions_for",
+    "decision_of",
     "environment",
     "fingerprint_of",
     "inputs_fingerprint",
@@ -218,6 +219,27 @@ def cautions_for(cases: list[dict[str, Any]]) -> list[str]:
             "authoritative ephemerides and screening services."
         )
     return out
+
+
+def decision_of(cells: list[dict[str, Any]], metas: list[dict[str, Any]]) -> dict[str, Any]:
+    """The record's decision: markdown cells tagged decision / rationale, else the first case's meta.
+
+    ``cells`` as ``notebook_cells`` gives them; ``metas`` the ``meta`` of each case, in order.
+    """
+
+    def tagged(tag: str) -> str:
+        return "\n\n".join(
+            c["source"] for c in cells if c["cell_type"] == "markdown" and tag in c.get("tags", [])
+        )
+
+    first = metas[0] if metas else {}
+    decision_md = tagged("decision")
+    return {
+        "decision": decision_md or first.get("decision", ""),
+        "rationale": tagged("rationale") or first.get("rationale", ""),
+        "alternatives": [a for m in metas for a in m.get("alternatives", [])],
+        "source": "notebook cells tagged decision/rationale" if decision_md else "case meta",
+    }
 
 
 def _git(folder: Path, *args: str) -> str | None:

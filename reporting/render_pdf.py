@@ -7,7 +7,8 @@ when running as root (containers, CI), where Chromium refuses to start otherwise
 says so. Printing waits until every figure has rendered (the record sets
 ``document.body.dataset.figures = "ready"``). Every page's footer carries the record id,
 the revision and the page number. The PDF then gets its metadata (title, record id, revision)
-and attachments: ``record.json``, ``notebook.ipynb`` (executed) and each case file.
+and attachments: ``record.json``, ``notebook.ipynb`` (executed), each case file and
+``pages.json`` (the digest of each printed page, ``verify_pdf.page_digests``).
 """
 
 from __future__ import annotations
@@ -206,6 +207,8 @@ def attach(pdf: bytes, record: dict[str, Any], notebook: bytes) -> bytes:
     """The PDF with metadata and attachments: record JSON, executed notebook, case files."""
     from pypdf import PdfWriter
 
+    from .verify_pdf import PAGES_ATTACHMENT, page_digests
+
     # Chromium's PDFs make pypdf warn about the trailer's object count: harmless, not for users.
     logging.getLogger("pypdf").setLevel(logging.ERROR)
 
@@ -230,6 +233,7 @@ def attach(pdf: bytes, record: dict[str, Any], notebook: bytes) -> bytes:
         writer.add_attachment(
             "case-" + case["name"].replace("/", "_"), case["canonical"].encode("utf-8")
         )
+    writer.add_attachment(PAGES_ATTACHMENT, page_digests(pdf))  # verify_pdf: pages as printed
     out = io.BytesIO()
     writer.write(out)
     return out.getvalue()

@@ -150,11 +150,20 @@ def standard_side_by_side(blocks: list[dict[str, Any]]) -> list[dict[str, Any]]:
                     "description": first["description"],
                     "group": first["group"],
                     "tolerance": _tolerance(first),
-                    "cells": [_cell("", c[name]["value"] if name in c else None) for c in by_case],
+                    "cells": [_result_cell(c.get(name)) for c in by_case],
                 }
             )
         tables.append({"cases": [b["case"] for b in chunk], "rows": rows})
     return tables
+
+
+def _result_cell(row: dict[str, Any] | None) -> dict[str, Any]:
+    """A standard result as the page shows it: rounded to what its tolerance supports."""
+    from .display import display_result
+
+    if row is None:
+        return _cell("", None)
+    return {**_cell("", row["value"]), "text": display_result(row)}
 
 
 def _tolerance(row: dict[str, Any]) -> str:
@@ -244,7 +253,9 @@ def _bokeh_js(nb: Any) -> Markup:
 
 def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
     """The template's view of ``record`` (and of the prepared notebook ``nb``)."""
+    from .display import display_result
     from .exporter import json_for_script
+    from .record_page import POLICY, SCRIPT_SOURCES
 
     rev = record.get("revision")
     inputs = [
@@ -276,6 +287,8 @@ def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
         "code_cells": code_cells,
         "narrative_skip": narrative_skip,
         "format_value": format_value,
+        "show_result": lambda row: display_result(row, record.get("built_utc")),
+        "content_security_policy": Markup(POLICY.format(scripts=SCRIPT_SOURCES)),
         "env_rows": _env_rows(record.get("environment", {})),
     }
 

@@ -33,6 +33,7 @@ from orbitledger.kernel.errors import InputError
 
 from . import record as rec
 from .figure_items import item_fingerprint
+from .verify_page import table_values
 
 __all__ = ["Check", "VerifyReport", "read_record", "verify_file", "verify_record"]
 
@@ -47,28 +48,6 @@ _FIGURE_SCRIPT = re.compile(
 
 # A value the HTML shows in its inputs and results tables, with the record entry it shows.
 _SHOWN_VALUE = re.compile(r'<td class="[^"]*" data-check="([^"]*)">([^<]*)</td>')
-
-
-def _expected_shown(record: dict[str, Any]) -> dict[str, str]:
-    """What the tables must show for each value of the record (the templates' formatting)."""
-    from .diff import flatten
-    from .templating import format_value
-
-    def text(value: Any) -> str:
-        return "—" if value is None else format_value(value)
-
-    out = {f"r|{r['name']}": text(r["value"]) for r in record.get("results", [])}
-    for block in record.get("standard_results", []):
-        for r in block["results"]:
-            out[f"s|{block['case']}|{r['name']}"] = text(r["value"])
-    for case in record.get("inputs", []):
-        try:
-            fields = flatten(json.loads(case["canonical"]))
-        except ValueError:
-            continue  # a broken canonical text is reported by the fingerprint check
-        for path, value in fields.items():
-            out[f"i|{case['name']}|{path}"] = text(value)
-    return out
 
 
 @dataclass(frozen=True)
@@ -128,7 +107,7 @@ def read_record(path: str | Path) -> tuple[dict[str, Any], dict[str, Any]]:
         ) from None
     figures = [(name, json.loads(body)) for name, body in _FIGURE_SCRIPT.findall(text)]
     shown = [(html.unescape(k), html.unescape(v)) for k, v in _SHOWN_VALUE.findall(text)]
-    return record, {"kind": "html", "figures": figures, "shown": shown}
+    return record, {"kind": "html", "figures": figures, "shown": shown, "html": text}
 
 
 def _read_pdf(path: Path) -> tuple[dict[str, Any], dict[str, Any]]:
@@ -148,7 +127,7 @@ def _read_pdf(path: Path) -> tuple[dict[str, Any], dict[str, Any]]:
         raise InputError(
             "RECORD", str(path), f"the attached record JSON does not parse: {err}"
         ) from None
-    return record, {"kind": "pdf", "attachments": attachments}
+    return record, {"kind": "pdf", "attachments": attachments, "data": path.read_bytes()}
 
 
 def _as_float(value: Any) -> float:
@@ -236,11 +215,8 @@ def _check_standard(
                 continue
             a, b = _as_float(row["value"]), float(now.value)
             same = (math.isnan(a) and math.isnan(b)) or math.isclose(
-                a,
-                b,
-                rel_tol=float(row.get("rel_tol", 1e-9)),
-                abs_tol=float(row.get("abs_tol", 0.0)),
-            )
+                a, b, rel_tol=float(now.rel_tol), abs_tol=float(now.abs_tol)
+            )  # the software's tolerance, never the file's
             if not same:
                 note = (
                     f" (orbitledger {__version__} computes differently from {_built_with(record)}, which built the record)"
@@ -278,7 +254,7 @@ def _check_extras(report: VerifyReport, record: dict[str, Any], extras: dict[str
                 same,
                 "" if same else "the drawn figure was altered",
             )
-        expected = _expected_shown(record)
+        expected = table_values(record)
         shown = extras["shown"]
         wrong = [(k, v) for k, v in shown if expected.get(k, "—") != v]  # "—": not in that case
         detail = "; ".join(
@@ -320,10 +296,19 @@ def verify_record(record: dict[str, Any], extras: dict[str, Any], path: str = ""
     )
     if not schema_ok:
         return report
+    from .verify_page import check_page
+    from .verify_pdf import check_pdf
+    from .verify_results import check_derived
+
     cases = _check_inputs(report, record)
     _check_fingerprints(report, record)
     _check_extras(report, record, extras)
+    if extras["kind"] == "html":
+        check_page(report, record, extras["html"])
+    else:
+        check_pdf(report, record, extras["data"], extras["attachments"])
     _check_standard(report, record, cases)
+    check_derived(report, record, cases)
     return report
 
 

@@ -1,0 +1,103 @@
+"""Numbers as an engineer writes them in a record: as many digits as the tolerance supports.
+
+The record's JSON keeps every value at full precision; the page shows it rounded:
+
+- a standard result to the decimals its verify tolerance supports: the smallest number of
+  decimals ``d`` with half a unit in the last place no more than the tolerance,
+  ``0.5 * 10**-d <= max(rel_tol * |value|, abs_tol)``, so the shown value differs from the full
+  value by no more than ``verify`` allows (trailing zeros dropped; scientific notation below
+  1e-4 and from 1e15);
+- an angle within noise of zero as ``0`` (below 1e-9 deg, 1e-11 rad, 1e-6 arcsec: common
+  practice for double-precision angle arithmetic, whose rounding error is near 1e-13 deg);
+- a date more than three years from the record's build date to the day, not the second
+  (a prediction that far ahead is not good to the second).
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from datetime import datetime, timezone
+from typing import Any
+
+__all__ = ["display_number", "display_result", "display_value", "noise_floor"]
+
+_ANGLE_NOISE = {"deg": 1e-9, "rad": 1e-11, "arcsec": 1e-6}
+_FAR_DAYS = 3 * 365.25
+_ISO = re.compile(r"^(\d{4}-\d{2}-\d{2})T\d{2}:\d{2}:\d{2}(\.\d+)?Z$")
+
+
+def noise_floor(unit: str) -> float:
+    """Below this magnitude a value in ``unit`` is zero within noise (0 when not an angle)."""
+    return _ANGLE_NOISE.get(unit.strip(), 0.0)
+
+
+def _plain(value: Any) -> str:
+    from .templating import format_value
+
+    return format_value(value)
+
+
+def _strip(text: str) -> str:
+    if "e" in text:
+        mantissa, exponent = text.split("e")
+        if "." in mantissa:
+            mantissa = mantissa.rstrip("0").rstrip(".")
+        return f"{mantissa}e{int(exponent):+03d}"
+    if "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return "0" if text in ("-0", "") else text
+
+
+def display_number(value: Any, rel_tol: float, abs_tol: float, unit: str = "") -> str:
+    """``value`` rounded to the precision its tolerance supports (module doc)."""
+    if value is None:
+        return "—"
+    if isinstance(value, bool) or not isinstance(value, int | float):
+        return _plain(value)  # "NaN", "Infinity" as the record writes them, or text
+    value = float(value)
+    if not math.isfinite(value):
+        return _plain(value)
+    tol = max(float(rel_tol) * abs(value), float(abs_tol), noise_floor(unit))
+    if abs(value) <= noise_floor(unit):
+        return "0"
+    if tol <= 0:
+        return _plain(value)
+    decimals = math.ceil(-math.log10(2 * tol) - 1e-12)
+    rounded = round(value, decimals) if decimals < 0 else value
+    if rounded == 0 or f"{rounded:.{max(decimals, 0)}f}".strip("-0.") == "":
+        return "0"
+    if 1e-4 <= abs(rounded) < 1e15:
+        return _strip(f"{rounded:.{max(decimals, 0)}f}")
+    digits = max(1, math.floor(math.log10(abs(rounded))) + decimals + 1)
+    return _strip(f"{rounded:.{digits - 1}e}")
+
+
+def display_value(value: Any, unit: str = "", built_utc: str | None = None) -> str:
+    """A value without a tolerance (a named result): angles near zero as 0, far dates by day."""
+    if isinstance(value, float) and math.isfinite(value) and abs(value) <= noise_floor(unit):
+        return "0"
+    if isinstance(value, str) and built_utc:
+        found = _ISO.match(value)
+        if found and _days_apart(value, built_utc) > _FAR_DAYS:
+            return found.group(1)
+    return _plain(value)
+
+
+def _days_apart(a: str, b: str) -> float:
+    def parse(text: str) -> datetime:
+        return datetime.fromisoformat(text.replace("Z", "+00:00")).astimezone(timezone.utc)
+
+    try:
+        return abs((parse(a) - parse(b)).total_seconds()) / 86400.0
+    except ValueError:
+        return 0.0
+
+
+def display_result(row: dict[str, Any], built_utc: str | None = None) -> str:
+    """A result row of the record as the page shows it: rounded by its tolerance when it has one."""
+    if "rel_tol" in row or "abs_tol" in row:
+        return display_number(
+            row.get("value"), row.get("rel_tol", 0.0), row.get("abs_tol", 0.0), row.get("unit", "")
+        )
+    return display_value(row.get("value"), row.get("unit", ""), built_utc)
