@@ -245,6 +245,7 @@ def _bokeh_js(nb: Any) -> Markup:
 def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
     """The template's view of ``record`` (and of the prepared notebook ``nb``)."""
     from .exporter import json_for_script
+    from .findings import findings_view
 
     rev = record.get("revision")
     inputs = [
@@ -277,6 +278,7 @@ def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
         "narrative_skip": narrative_skip,
         "format_value": format_value,
         "env_rows": _env_rows(record.get("environment", {})),
+        "findings": findings_view(record),
     }
 
 

@@ -33,6 +33,7 @@ from orbitledger.kernel.errors import InputError
 
 from . import record as rec
 from .figure_items import item_fingerprint
+from .findings import check_findings
 
 __all__ = ["Check", "VerifyReport", "read_record", "verify_file", "verify_record"]
 
@@ -324,6 +325,7 @@ def verify_record(record: dict[str, Any], extras: dict[str, Any], path: str = ""
     _check_fingerprints(report, record)
     _check_extras(report, record, extras)
     _check_standard(report, record, cases)
+    check_findings(report, record)
     return report
 
 
