@@ -23,8 +23,13 @@ def __getattr__(name: str) -> Any:
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
-def open_case(path):
-    """Load the case file at ``path``, or write the starter case there first if it is missing.
+def open_case(path, *, create=False):
+    """Load the case file at ``path``; ``create=True`` writes the starter case there first if
+    it is missing.
+
+    A missing file is an error (``orbitledger.case.CaseFileNotFound``, naming the path and the
+    closest existing case file in its folder), in a build and in a live notebook alike: a
+    mistyped name never silently becomes the starter case.
 
     Returns the case bound to its file (an :class:`orbitledger.case.CaseFile`: ``.case`` is
     the validated Case, ``.save(case)`` writes it back atomically); ``.editor()`` opens the
@@ -32,4 +37,4 @@ def open_case(path):
     """
     from ._opened import open_case as _open_case
 
-    return _open_case(path)
+    return _open_case(path, create=create)

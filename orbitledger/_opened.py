@@ -26,6 +26,7 @@ class StudyCaseFile(CaseFile):
         return CaseEditor(self)
 
 
-def open_case(path: str | os.PathLike) -> StudyCaseFile:
-    """Load the case file at ``path`` (writing the starter case there first if it is missing)."""
-    return StudyCaseFile.open(path)
+def open_case(path: str | os.PathLike, *, create: bool = False) -> StudyCaseFile:
+    """Load the case file at ``path``; ``create=True`` writes the starter case there first if
+    it is missing (else a missing file raises ``CaseFileNotFound`` naming the closest one)."""
+    return StudyCaseFile.open(path, create=create)

@@ -19,6 +19,7 @@ from .kernel.errors import InputError
 
 __all__ = [
     "RESULT_MIME",
+    "SNAPSHOT_MIME",
     "NamedResult",
     "NotedFigure",
     "OpenedCase",
@@ -33,6 +34,8 @@ __all__ = [
 
 # The MIME type of a named result in a notebook's outputs (the record renders it as a row).
 RESULT_MIME = "application/vnd.orbitledger.result+json"
+# A widget's static snapshot beside its live view (widgets/snapshot.py; the record's table).
+SNAPSHOT_MIME = "application/vnd.orbitledger.snapshot+json"
 
 
 @dataclass(frozen=True)

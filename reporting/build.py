@@ -125,9 +125,20 @@ def _first_heading(nb: Any) -> str:
 
 
 def assemble_record(
-    nb_path: Path, executed: Any, manifest: dict[str, Any], *, note: str = ""
+    nb_path: Path,
+    executed: Any,
+    manifest: dict[str, Any],
+    *,
+    note: str = "",
+    accept_failing: str | None = None,
 ) -> dict[str, Any]:
-    """The record (without revision and history) of one executed study."""
+    """The record (without revision and history) of one executed study.
+
+    ``accept_failing``: the reason to record it although a criterion fails (kept in its
+    findings and shown on its cover).
+    """
+    from .findings import record_findings
+
     nb_path = Path(nb_path).resolve()
     built_utc = datetime.now(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
     inputs, cases = _cases(manifest, nb_path.parent)
@@ -173,6 +184,7 @@ def assemble_record(
         ],
         "results": named,
         "standard_results": standard,
+        "findings": record_findings(inputs, standard, accept_failing),
         "figures": _figures(executed),
         "environment": rec.environment(nb_path.parent, built_utc),
         "notebook": {"name": nb_path.name, "cells": cells},
@@ -211,8 +223,15 @@ def build(
     ledger_dir: str | Path | None = None,
     note: str = "",
     progress: bool = True,
+    strict: bool = False,
+    accept_failing: str | None = None,
 ) -> BuildOutcome:
-    """Build the record of ``nb_path`` into the ledger (default ``ledger/`` beside the notebook)."""
+    """Build the record of ``nb_path`` into the ledger (default ``ledger/`` beside the notebook).
+
+    ``strict=True`` refuses to write a record in which a criterion fails
+    (``findings.FailingCriteria``, nothing written) unless ``accept_failing`` gives the reason
+    to record it anyway; the reason is kept in the record and shown on its cover.
+    """
 
     unknown = set(to) - {"html", "pdf"}
     if unknown or not to:
@@ -228,7 +247,15 @@ def build(
             read_notebook(nb_path), nb_path.parent, name=nb_path.name, progress=progress
         )
         return record_run(
-            nb_path, executed, manifest, to=to, ledger_dir=ledger_dir, note=note, printer=printer
+            nb_path,
+            executed,
+            manifest,
+            to=to,
+            ledger_dir=ledger_dir,
+            note=note,
+            printer=printer,
+            strict=strict,
+            accept_failing=accept_failing,
         )
     finally:
         if printer is not None:
@@ -244,21 +271,29 @@ def record_run(
     ledger_dir: str | Path | None = None,
     note: str = "",
     printer: Any = None,
+    strict: bool = False,
+    accept_failing: str | None = None,
 ) -> BuildOutcome:
     """Assemble, render and commit the record of an executed study (the second half of build).
 
     ``printer`` is a ``render_pdf.PdfPrinter`` started earlier, if any (else one is started).
+    ``strict`` and ``accept_failing``: see :func:`build`.
     """
+    from .findings import refuse_failing
     from .ledger import Ledger
     from .render_html import render_html
 
     nb_path = Path(nb_path).resolve()
-    record = assemble_record(nb_path, executed, manifest, note=note)
+    record = assemble_record(nb_path, executed, manifest, note=note, accept_failing=accept_failing)
+    if strict:
+        refuse_failing(record["findings"])
     ledger = Ledger(ledger_dir if ledger_dir is not None else nb_path.parent / "ledger")
     reservation = ledger.reserve(
         record["record_id"], title=record["title"], author=record["prepared"]["name"], note=note
     )
     outcome = BuildOutcome(record["record_id"], reservation.revision, record)
+    if accept_failing is not None and not record["findings"]["failing"]:
+        outcome.messages.append("--accept-failing given, but every criterion holds")
     try:
         record["revision"] = reservation.revision
         record["history"] = _history(ledger, record, reservation.revision)

@@ -26,6 +26,8 @@ from markupsafe import Markup
 from nbconvert.exporters import HTMLExporter
 from traitlets import default
 
+from orbitledger.study import SNAPSHOT_MIME
+
 from .build import FIGURE_MIME
 from .figure_items import drawable_item
 from .record_text import show_controls
@@ -139,6 +141,8 @@ def prepare_outputs(nb: Any) -> Any:
                 output["data"] = {RESULT_MIME: data[RESULT_MIME]}
             elif "application/javascript" in data and len(set(data) - {"text/plain"}) == 1:
                 output["data"] = {NOTE_MIME: "a JavaScript output is not carried into the record"}
+            elif SNAPSHOT_MIME in data:  # a widget with its static snapshot: the record's table
+                output["data"] = {SNAPSHOT_MIME: data[SNAPSHOT_MIME]}
             elif WIDGET_MIME in data:
                 output["data"] = {
                     NOTE_MIME: "an interactive widget: live in the notebook, not part of the record"
@@ -179,6 +183,7 @@ class OrbitRecordExporter(HTMLExporter):
         config.NbConvertBase.display_data_priority = [
             FIGURE_MIME,
             RESULT_MIME,
+            SNAPSHOT_MIME,
             "text/html",
             "text/markdown",
             "image/svg+xml",

@@ -39,8 +39,11 @@ _FLAGS = [
     "--disable-sync",
     "--no-first-run",
 ]
-# Printed width of the A4 page inside the @page margins (210 mm - 2 x 15 mm) at 96 px/inch.
-_PRINT_WIDTH_PX = int(180 / 25.4 * 96)
+# Printed width of the A4 page inside the @page margins (210 mm - 2 x 15 mm) at 96 px/inch,
+# less the figure frame's padding and border; the height a figure may take on one page
+# (297 mm - 16 mm - 18 mm of margins, less room for its caption).
+_PRINT_WIDTH_PX = int(180 / 25.4 * 96) - 20
+_PRINT_HEIGHT_PX = int((297 - 16 - 18 - 30) / 25.4 * 96)
 
 
 class BrowserMissing(Exception):
@@ -134,7 +137,7 @@ def _print_page(browser: Any, html: str, record: dict[str, Any]) -> bytes:
         page.emulate_media(media="print")  # before loading: the figures draw once, for print
         page.goto(page_file.as_uri(), wait_until="load")
         wait_for_figures(page)
-        page.evaluate(f"window.orbitledgerPrepareForPrint({_PRINT_WIDTH_PX})")
+        page.evaluate(f"window.orbitledgerPrepareForPrint({_PRINT_WIDTH_PX}, {_PRINT_HEIGHT_PX})")
         pdf = page.pdf(
             format="A4",
             print_background=True,

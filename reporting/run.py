@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import copy
 import logging
+import os
 import re
 import sys
 import tempfile
@@ -135,8 +136,11 @@ def execute_study(
     # The kernel's own log (not the cells' output, which comes back as outputs) goes to a
     # file: its start-up notices are noise on the terminal; its tail explains a dead kernel.
     kernel_log = tempfile.TemporaryFile(mode="w+", prefix="orbitledger-kernel-")
+    # ORBITLEDGER_BUILD tells the study's widgets that no one watches them: their snapshots
+    # for the record hold every result (widgets/snapshot.py).
+    env = {**os.environ, "ORBITLEDGER_BUILD": "1"}
     try:
-        client.execute(stderr=kernel_log)
+        client.execute(stderr=kernel_log, env=env)
     except CellExecutionError as err:
         raise BuildError(_cell_failure(run, current["index"], err)) from None
     except CellTimeoutError:

@@ -256,6 +256,7 @@ def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
     from .display import display_result
     from .exporter import json_for_script
     from .record_page import POLICY, SCRIPT_SOURCES
+    from .findings import findings_view
 
     rev = record.get("revision")
     inputs = [
@@ -290,6 +291,7 @@ def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
         "show_result": lambda row: display_result(row, record.get("built_utc")),
         "content_security_policy": Markup(POLICY.format(scripts=SCRIPT_SOURCES)),
         "env_rows": _env_rows(record.get("environment", {})),
+        "findings": findings_view(record),
     }
 
 

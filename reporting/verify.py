@@ -34,6 +34,7 @@ from orbitledger.kernel.errors import InputError
 from . import record as rec
 from .figure_items import item_fingerprint
 from .verify_page import table_values
+from .findings import check_findings
 
 __all__ = ["Check", "VerifyReport", "read_record", "verify_file", "verify_record"]
 
@@ -309,6 +310,7 @@ def verify_record(record: dict[str, Any], extras: dict[str, Any], path: str = ""
         check_pdf(report, record, extras["data"], extras["attachments"])
     _check_standard(report, record, cases)
     check_derived(report, record, cases)
+    check_findings(report, record)
     return report
 
 

@@ -76,6 +76,23 @@ def test_a_failing_cell_stops_the_build_naming_the_cell_and_writes_nothing(tmp_p
     assert Ledger(tmp_path / "ledger").record_ids() == []
 
 
+def test_a_mistyped_case_file_stops_the_build_naming_the_path(tmp_path, capsys):
+    # A study that opens "candidate-aa.case.json" (a typo for candidate-a.case.json) must not
+    # build a record of the starter case: the build fails naming both files, writes nothing.
+    typo = nbformat.v4.new_code_cell("other = orbitledger.open_case('candidate-aa.case.json')")
+    study = write_study(tmp_path, extra_cells=[typo])
+    with pytest.raises(BuildError) as err:
+        build(study, progress=False)
+    text = str(err.value)
+    assert "CaseFileNotFound" in text and "candidate-aa.case.json" in text
+    assert "closest existing case file is candidate-a.case.json" in text
+    assert not (tmp_path / "candidate-aa.case.json").exists()
+    assert main(["build", str(study)]) == 2
+    err_text = capsys.readouterr().err
+    assert "candidate-aa.case.json" in err_text and "nothing was written" in err_text
+    assert Ledger(tmp_path / "ledger").record_ids() == []
+
+
 def test_bad_command_line_input_exits_2(tmp_path, capsys):
     assert main(["build", str(tmp_path / "missing.ipynb")]) == 2
     assert "no such notebook" in capsys.readouterr().err

@@ -34,14 +34,32 @@ def case_path(tmp_path):
     return path
 
 
-def test_open_case_writes_the_starter_case_for_a_missing_file(tmp_path):
+def test_open_case_with_create_writes_the_starter_case_for_a_missing_file(tmp_path):
     path = tmp_path / "new.case.json"
-    opened = orbitledger.open_case(path)
+    opened = orbitledger.open_case(path, create=True)
     assert path.exists() and opened.case == starter_case()
     assert hasattr(opened, "editor") and isinstance(opened, CaseFile)
     assert opened.orbit.form == "classical"  # attribute access falls through to the case
     before = path.read_bytes()
-    assert open_case(path).case == starter_case() and path.read_bytes() == before
+    assert open_case(path, create=True).case == starter_case() and path.read_bytes() == before
+    assert open_case(path).case == starter_case()  # an existing file opens without create
+
+
+def test_open_case_of_a_missing_file_names_it_and_the_closest_case_file(tmp_path):
+    write_new_case(tmp_path / "baseline-25.case.json", starter_case())
+    write_new_case(tmp_path / "other.case.json", starter_case())
+    typo = tmp_path / "baseline-252.case.json"
+    for opener in (orbitledger.open_case, open_case):
+        with pytest.raises(CaseFileNotFound) as err:
+            opener(typo)
+        text = str(err.value)
+        assert str(typo) in text and str(tmp_path / "baseline-25.case.json") in text
+        assert "create=True" in text and "orbitledger new" in text
+        assert "\n" not in text  # one line
+    assert not typo.exists()  # nothing written
+    (tmp_path / "empty").mkdir()
+    with pytest.raises(CaseFileNotFound, match="there is no case file in"):
+        open_case(tmp_path / "empty" / "x.case.json")
 
 
 def test_load_and_save_are_noted_in_the_study_registry(case_path):

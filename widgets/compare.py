@@ -21,6 +21,7 @@ from orbitledger import analysis
 
 from .livefigures import load_bokehjs
 from .results import GROUP_TITLES, format_value
+from .snapshot import TradeView
 from .style import style_sheet
 
 __all__ = ["CRITERIA", "TradeTable", "best_index", "compare", "trade_table"]
@@ -217,7 +218,7 @@ def compare(
 
     figures = [BokehModel(fig) for fig in overlay_figures(plain, table.labels, theme=theme)]
     box = w.HBox(figures, layout=w.Layout(flex_flow="row wrap"))
-    view = w.VBox([style_sheet(), heading, body, note, box])
+    view = TradeView([style_sheet(), heading, body, note, box])
     view.add_class("ol-compare")
     view.trade = table  # type: ignore[attr-defined]
     return view

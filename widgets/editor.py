@@ -32,6 +32,7 @@ from .debounce import Debouncer
 from .fields import Field
 from .form import EditorForm
 from .history import History
+from .snapshot import EditorSnapshot
 from .livefigures import load_bokehjs
 from .tables import ListTable
 
@@ -66,7 +67,7 @@ def _error_text(err: Exception) -> str:
     return str(reason) if reason else str(err)
 
 
-class CaseEditor(EditorForm):
+class CaseEditor(EditorSnapshot, EditorForm):
     """The editing widget for one case (bound to its case file when given one).
 
     ``source``: a ``CaseFile`` (edits are saved to it) or a bare ``Case`` (edits stay in the

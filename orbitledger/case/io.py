@@ -138,10 +138,18 @@ class CaseFile:
         self.reload()
 
     @classmethod
-    def open(cls, path: str | os.PathLike) -> CaseFile:
-        """Open the case file at ``path``, writing the starter case there first if it is missing."""
+    def open(cls, path: str | os.PathLike, *, create: bool = False) -> CaseFile:
+        """Open the case file at ``path``.
+
+        A missing file is refused (``CaseFileNotFound`` naming the path and the closest
+        existing case file beside it), so a mistyped name never starts a study from the
+        starter case. ``create=True`` writes the starter case there first (as ``orbitledger
+        new`` does); an existing file is opened as it is, never overwritten.
+        """
         path = Path(path)
         if not path.exists():
+            if not create:
+                raise CaseFileNotFound("", MISSING, missing_case_reason(path), file=str(path))
             from .starter import starter_case
 
             try:
@@ -223,6 +231,29 @@ class CaseFile:
         return f"{type(self).__name__}({str(self._path)!r}, fingerprint={self.fingerprint[:12]}...)"
 
 
-def open_case(path: str | os.PathLike) -> CaseFile:
-    """Load the case file at ``path`` as a CaseFile; write the starter case there if missing."""
-    return CaseFile.open(path)
+def open_case(path: str | os.PathLike, *, create: bool = False) -> CaseFile:
+    """Load the case file at ``path`` as a CaseFile; ``create=True`` writes the starter case
+    there first if it is missing (else a missing file raises ``CaseFileNotFound``)."""
+    return CaseFile.open(path, create=create)
+
+
+def missing_case_reason(path: Path) -> str:
+    """Why ``path`` cannot be opened, naming the closest existing case file in its folder."""
+    import difflib
+
+    folder = path.parent if str(path.parent) else Path(".")
+    try:
+        names = sorted(p.name for p in folder.glob("*.case.json") if p.is_file())
+    except OSError:
+        names = []
+    close = difflib.get_close_matches(path.name, names, n=1, cutoff=0.0)
+    if close:
+        hint = f"the closest existing case file is {folder / close[0]}"
+    elif folder.is_dir():
+        hint = f"there is no case file in {folder}"
+    else:
+        hint = f"the folder {folder} does not exist"
+    return (
+        f"no such case file ({hint}); to start a new case write one with "
+        "'orbitledger new PATH' or open_case(PATH, create=True)"
+    )

@@ -7,7 +7,7 @@ from collections.abc import Mapping
 from typing import Annotated, Any, Literal
 
 import numpy as np
-from pydantic import BeforeValidator, Field, ValidationError, model_validator
+from pydantic import BeforeValidator, Field, ValidationError, model_serializer, model_validator
 
 from ..kernel.constants import Body
 from ..kernel.elements import Elements
@@ -62,6 +62,18 @@ class Case(CaseModel):
     burns: list[Burn] = Field(default_factory=list)
     budget: Budget | None = None
     source: Source | None = None
+    criteria: list[str] = Field(default_factory=list)
+    """Pass/fail conditions on this case's results, e.g. "propellant_margin_kg >= 0" or
+    "lifetime_years <= budget.disposal.lifetime_limit_years"; the record lists each first."""
+
+    @model_serializer(mode="wrap")
+    def _criteria_only_when_stated(self, handler: Any) -> Any:
+        # A case that states no criteria keeps the JSON (and the fingerprint) it had before
+        # cases could state them, so records built earlier still verify.
+        data = handler(self)
+        if isinstance(data, dict) and not self.criteria:
+            data.pop("criteria", None)
+        return data
 
     @model_validator(mode="after")
     def _cross_section_rules(self) -> Case:
@@ -122,6 +134,13 @@ class Case(CaseModel):
                 "sgp4",
                 "SGP4 needs the TLE it propagates: a source of kind 'tle'",
             )
+        if self.criteria:
+            from .criterion import stated_criteria
+
+            try:
+                stated_criteria(self.to_data())
+            except CaseError as err:
+                raise rule(err.field, err.value, err.reason) from None
         return self
 
     # --- what the kernel needs ---------------------------------------------------------

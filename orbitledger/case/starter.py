@@ -2,7 +2,8 @@
 
 A 48 kg Earth-observation smallsat released near 540 km in a near-circular sun-synchronous
 orbit, with three invented ground stations, a burn plan that raises it to its operational
-545 km circular orbit, and a five-year delta-v budget with a disposal line. Written by ``orbitledger new`` and by ``open_case`` for a missing file.
+545 km circular orbit, and a five-year delta-v budget with a disposal line. Written by ``orbitledger new`` and by
+``open_case(path, create=True)`` for a missing file.
 """
 
 from __future__ import annotations

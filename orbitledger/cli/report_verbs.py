@@ -63,13 +63,26 @@ def _print_outcome(outcome) -> None:
 
 def _run_build(args: argparse.Namespace) -> int:
     from orbitledger.reporting.build import BuildError, build
+    from orbitledger.reporting.findings import FailingCriteria
 
     _log_to_stderr()
     study = Path(args.study)
     to = _formats(args.to)
     ledger = _ledger_dir(args, study.resolve().parent / "ledger")
     try:
-        outcome = build(study, to=to, ledger_dir=ledger, note=args.note or "")
+        outcome = build(
+            study,
+            to=to,
+            ledger_dir=ledger,
+            note=args.note or "",
+            strict=args.strict,
+            accept_failing=args.accept_failing,
+        )
+    except FailingCriteria as err:  # a check that did not hold: exit 1
+        print(
+            f"orbitledger build: {study}: {err}\nnothing was written to the ledger", file=sys.stderr
+        )
+        return 1
     except BuildError as err:
         print(
             f"orbitledger build: {study}: {err}\nnothing was written to the ledger", file=sys.stderr
@@ -178,6 +191,16 @@ def register(subparsers) -> None:
         "--ledger", metavar="DIR", help="ledger folder (default: ledger/ beside the notebook)"
     )
     p.add_argument("--note", default="", help="what changed in this revision")
+    p.add_argument(
+        "--strict",
+        action="store_true",
+        help="refuse to write a record in which a criterion fails (exit 1)",
+    )
+    p.add_argument(
+        "--accept-failing",
+        metavar="REASON",
+        help="record it although a criterion fails; the reason is kept in the record",
+    )
     p.set_defaults(run=_run_build)
 
     p = subparsers.add_parser("history", help="the revisions of a record, with what changed")

@@ -42,7 +42,7 @@ __all__ = [
 ]
 
 # REF_FRAME values of CCSDS 502.0-B-2 Annex A (A2), with the ITRF realisations and ICRF
-# named in the SANA registry since (from memory).
+# named in the SANA registry since.
 CCSDS_FRAMES = (
     "EME2000", "GCRF", "GRC", "ICRF", "ITRF2000", "ITRF-93", "ITRF-97", "ITRF2005",
     "ITRF2008", "ITRF2014", "ITRF2020", "MCI", "TDR", "TEME", "TOD",

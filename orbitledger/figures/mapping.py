@@ -67,8 +67,8 @@ def visibility_central_angle_deg(
 
     A satellite at ``altitude_km`` above a spherical body of ``radius_km`` is seen at elevation
     >= ``mask_deg`` from every point within this angle of its sub-satellite point. Wertz and
-    Larson, *Space Mission Analysis and Design*, 3rd ed. (1999), Sec. 5.2 (equation numbers
-    5-16 to 5-18 from memory): angular radius of the Earth sin(rho) = R / (R + h), nadir angle
+    Larson, *Space Mission Analysis and Design*, 3rd ed. (1999), Ch. 5, Earth geometry
+    viewed from space: angular radius of the Earth sin(rho) = R / (R + h), nadir angle
     sin(eta) = sin(rho) cos(eps), central angle lambda = 90 deg - eps - eta. The ground range is
     lambda (rad) times R.
     """
@@ -90,8 +90,8 @@ def small_circle_lon_lat(
     deg, closed (first point repeated), longitudes wrapped to [-180, 180).
 
     The destination-point formulas of spherical trigonometry (Snyder, *Map Projections: A
-    Working Manual*, USGS Professional Paper 1395 (1987), Eqs. 5-5 and 5-6; numbers from
-    memory) at azimuths 0..360 deg.
+    Working Manual*, USGS Professional Paper 1395 (1987), Ch. 5, formulas of the
+    sphere) at azimuths 0..360 deg.
     """
     phi = math.radians(lat_deg)
     delta = math.radians(radius_deg)

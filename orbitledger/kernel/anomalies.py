@@ -3,8 +3,8 @@
 All angles in radians; every function broadcasts its arguments (numpy arrays or floats).
 
 Relations (Vallado, Fundamentals of Astrodynamics and Applications, 4th ed. (2013), Ch. 2,
-Algorithms 2-6; Curtis, Orbital Mechanics for Engineering Students, 3rd ed. (2014),
-Sects. 3.4-3.5 and 3.7; algorithm and section numbers quoted from memory):
+the anomaly conversions; Curtis, Orbital Mechanics for Engineering Students, 3rd ed.
+(2014), Ch. 3, elliptical, parabolic and hyperbolic trajectories):
 
 - ellipse (0 <= e < 1): tan(E/2) = sqrt((1-e)/(1+e)) tan(nu/2), M = E - e sin E;
 - hyperbola (e > 1): tanh(H/2) = sqrt((e-1)/(e+1)) tan(nu/2), M = e sinh H - H;

@@ -88,7 +88,7 @@ def drag_makeup_dv_km_s_per_year(
     eccentric anomaly (dt proportional to (1 - e cos E) dE; 256 nodes, trapezoidal) and
     multiplied by a tropical year. For a circular orbit without atmospheric rotation this is
     the make-up per revolution pi rho a V / B of Larson & Wertz, *Space Mission Analysis and
-    Design*, 3rd ed. (1999), Sec. 6.2.3 (from memory) times the revolutions per year. F is
+    Design*, 3rd ed. (1999), Ch. 6, orbit maintenance, times the revolutions per year. F is
     King-Hele's atmospheric-rotation factor (1 - r w cos i / v)^2 (*Satellite Orbits in an
     Atmosphere*, 1987); density from ``orbitledger.kernel.atmosphere`` at the given solar
     activity, heights above the ellipsoid at the mean latitude.

@@ -58,8 +58,9 @@ _WGS84 = (
     "NIMA TR8350.2, Department of Defense World Geodetic System 1984, 3rd ed. (2000), Table 3.1"
 )
 _EGM96 = (
-    "EGM96 (Lemoine et al. 1998, NASA/TP-1998-206861), normalised C20 = -4.84165371736e-4, "
-    "C30 = 9.57254173792e-7, C40 = 5.39873863789e-7 (coefficients quoted from memory)"
+    "EGM96 (Lemoine et al. 1998, NASA/TP-1998-206861), coefficient file egm96_to360.ascii: "
+    "fully normalised C20 = -0.484165371736e-3, C30 = 0.957254173792e-6, "
+    "C40 = 0.539873863789e-6; J_n = -sqrt(2n + 1) C_n0"
 )
 
 EARTH = Body(
@@ -117,8 +118,8 @@ MARS = Body(
         "mu_km3_s2": "JPL DE430 (Folkner et al. 2014), Mars system GM",
         "radius_km": "IAU WGCCRE report 2009 (Archinal et al. 2011), equatorial radius",
         "flattening": "IAU WGCCRE report 2009, equatorial 3396.19 km and polar 3376.20 km radii",
-        "j2": "NASA GSFC Mars Fact Sheet (value quoted from memory)",
-        "rotation_rate_rad_s": "NASA GSFC Mars Fact Sheet, sidereal rotation 24.6229 h (from memory)",
+        "j2": "NASA GSFC Mars Fact Sheet, J2 = 1960.45e-6",
+        "rotation_rate_rad_s": "NASA GSFC Mars Fact Sheet, sidereal rotation period 24.6229 h",
     },
 )
 
@@ -129,7 +130,7 @@ AU_KM = 149_597_870.700
 # Standard acceleration of gravity, 3rd CGPM (1901): exactly 9.80665 m/s^2.
 G0_M_S2 = 9.80665
 SECONDS_PER_DAY = 86_400.0
-# Mean sidereal day, 23 h 56 min 4.0905 s (Astronomical Almanac, glossary; value from memory).
+# Mean sidereal day, 23 h 56 min 4.0905 s (Astronomical Almanac, glossary).
 SIDEREAL_DAY_S = 86_164.0905
 # Mean tropical year, 365.24219 days (Explanatory Supplement to the Astronomical Almanac, 1992).
 TROPICAL_YEAR_DAYS = 365.24219

@@ -40,7 +40,7 @@ less than 1e-15 relative.
 
 Methods: Vallado, Fundamentals of Astrodynamics and Applications, 4th ed. (2013), Algorithm 9
 (RV2COE) and Algorithm 10 (COE2RV); Curtis, Orbital Mechanics for Engineering Students,
-3rd ed. (2014), Algorithms 4.2 and 4.5 (algorithm numbers from memory). The eccentricity vector
+3rd ed. (2014), Ch. 4, orbital elements from the state vector and back. The eccentricity vector
 is formed as (v x h) / mu - r / |r|, and every angle as an atan2 of two projections, which keeps
 full precision at 0 and 180 deg where an arccos would not.
 """

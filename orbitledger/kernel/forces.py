@@ -129,7 +129,7 @@ def drag_acceleration_km_s2(
     """Drag acceleration -(1/2) rho |v_rel| v_rel / B, km/s^2, in a co-rotating atmosphere.
 
     v_rel = v - omega x r with omega along z at ``body.rotation_rate_rad_s`` (Montenbruck &
-    Gill, Satellite Orbits (2000), Sec. 3.5.1, Eq. 3.97; equation number from memory).
+    Gill, Satellite Orbits (2000), Sec. 3.5, atmospheric drag).
     B = m / (Cd A), kg/m^2. The density is ``density(h_km)`` if given, else the exponential
     model of ``orbitledger.kernel.atmosphere`` at ``solar_activity``.
     """
@@ -155,7 +155,7 @@ def third_body_acceleration_km_s2(
     """Perturbing acceleration of a third body on a geocentric satellite, km/s^2.
 
     mu_b [ (s - r)/|s - r|^3 - s/|s|^3 ], s the body's geocentric position (Montenbruck &
-    Gill, Satellite Orbits (2000), Sec. 3.3.1, Eq. 3.37; equation number from memory). In
+    Gill, Satellite Orbits (2000), Sec. 3.3, Sun and Moon as point masses). In
     double precision the difference loses under 1e-9 relative accuracy for an Earth
     satellite, far below the model's own error.
     """

@@ -183,8 +183,8 @@ def mean_semi_major_axis_km(elements: Elements, body: Body = EARTH) -> float:
     """Mean (orbit-averaged) semi-major axis, km, of osculating elements under J2.
 
     Removes the first-order short-period J2 term of the semi-major axis (Kozai, "The motion of
-    a close Earth satellite", Astron. J. 64 (1959) 367, short-period part of a; form quoted from
-    memory and verified in tests/test_j2.py against a numerical J2 orbit, where a - da stays
+    a close Earth satellite", Astron. J. 64 (1959) 367, short-period part of a; the form is
+    verified in tests/test_j2.py against a numerical J2 orbit, where a - da stays
     constant to about 10 m while the osculating a swings by +-10 km):
 
         da = (J2 R^2 / a) [(1 - 3/2 sin^2 i) ((a/r)^3 - (1 - e^2)^(-3/2))

@@ -1,7 +1,7 @@
 """Hyperbolic Kepler's equation e sinh H - H = M, and cancellation-free residuals near e = 1.
 
 Starter: H0 = ln(2|M|/e + 1.8) of J. M. A. Danby, Fundamentals of Celestial Mechanics,
-2nd ed. (1988), Ch. 6 (chapter from memory), capped by the root of the cubic
+2nd ed. (1988), the hyperbolic Kepler equation, capped by the root of the cubic
 (e - 1) H + e H^3 / 6 = |M|, an upper bound of the root since sinh H >= H + H^3/6 (Cardano's
 root written without cancellation). Correction: the fifth-order step of F. L. Markley,
 Celestial Mechanics and Dynamical Astronomy 63:101 (1995), repeated until it is below a few

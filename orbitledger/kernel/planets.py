@@ -5,8 +5,8 @@ JPL Solar System Dynamics (ssd.jpl.nasa.gov), Table 1: mean elements and their r
 Julian century, referred to the mean ecliptic and equinox of J2000, fitted to JPL DE405 over
 1800 AD - 2050 AD. Valid span: 1800-01-01 to 2050-12-31 (TDB); outside it this module refuses
 (``InputError``): the table's second set (3000 BC - 3000 AD, with extra terms for the outer
-planets) is not implemented. Stated accuracy over the span (Standish, Table 2a, quoted from
-memory): heliocentric errors of order 15-40 arcsec and 1000-25 000 km for Mercury to Mars and
+planets) is not implemented. Accuracy over the span, as the table's own notes state it (Standish,
+error table of the 1800-2050 set): heliocentric errors of order 15-40 arcsec and 1000-25 000 km for Mercury to Mars and
 the Earth-Moon barycentre, up to about 600 arcsec and 600-1500 thousand km for Jupiter and
 Saturn. Good for mission design surveys (porkchop grids), not for navigation: defer to an
 authoritative ephemeris (JPL DE series) for anything that flies.

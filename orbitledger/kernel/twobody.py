@@ -207,7 +207,7 @@ def stumpff_c2_c3(z: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
 
     Continued to z < 0 with cosh and sinh; Taylor series for |z| < 4 (exact to rounding, no
     cancellation); c2 by the half-angle form 2 sin^2(s/2)/z elsewhere (Vallado 4th ed.,
-    Algorithm 1, numbering from memory; Curtis 3rd ed., eqs. 3.52).
+    Ch. 2, universal variables; Curtis 3rd ed., Ch. 3, Stumpff functions).
     """
     z = np.asarray(z, dtype=float)
     c2 = np.empty_like(z)

@@ -6,6 +6,8 @@ DataFrames (inputs named by their case-file paths, metrics with their units in t
 ``scheduler=`` runs the per-case metrics on a Dask cluster with identical results.
 ``apply_criteria`` marks each case pass/fail with its reasons; ``rank_candidates`` ranks the
 passing ones; ``candidates_to_cases`` turns them into cases for the widgets' trade view.
+``case_findings`` judges the criteria a case file states on its own results (a record's
+findings).
 See docs/trade.md.
 """
 
@@ -18,6 +20,7 @@ from .criteria import (
 )
 from .dispersion import Normal, Uniform, disperse, draw_samples, parse_disperse
 from .evaluate import estimate_bytes, evaluate_cases
+from .findings import case_findings
 from .metrics import CASE_GROUPS, METRIC_GROUPS, VECTOR_GROUPS, repeat_track_metrics
 from .sweep import grid, parse_values, parse_vary, sweep, sweep_inputs
 from .tables import load_table, save_table
@@ -31,6 +34,7 @@ __all__ = [
     "Uniform",
     "apply_criteria",
     "candidates_to_cases",
+    "case_findings",
     "disperse",
     "draw_samples",
     "estimate_bytes",

@@ -19,19 +19,20 @@ from __future__ import annotations
 
 import math
 import operator
-import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 
+from ..case.criterion import split_criterion
 from ..kernel.errors import InputError
 
 __all__ = [
     "Criterion",
     "apply_criteria",
     "candidates_to_cases",
+    "failure_reason",
     "parse_criterion",
     "rank_candidates",
 ]
@@ -42,7 +43,6 @@ _OPERATORS = {
     ">": operator.gt,
     "<": operator.lt,
 }
-_TEXT = re.compile(r"^\s*([A-Za-z_][\w.\[\]]*)\s*(>=|<=|>|<)\s*([-+0-9.eE]+)\s*$")
 
 
 @dataclass(frozen=True)
@@ -75,16 +75,26 @@ class Criterion:
             return _OPERATORS[self.op](values, float(self.threshold)) & np.isfinite(values)
 
 
+def failure_reason(criterion: Criterion, value: float, unit: str = "") -> str:
+    """Why ``value`` fails ``criterion``: "contact_min_per_day = 12.5 min/day, needs >= 20"."""
+    if not math.isfinite(value):
+        return f"{criterion.metric} not computed for this case"
+    return (
+        f"{criterion.metric} = {value:.6g} {unit}".rstrip()
+        + f", needs {criterion.op} {criterion.threshold:g}"
+    )
+
+
 def parse_criterion(text: str | Criterion) -> Criterion:
     """``"contact_min_per_day >= 20"`` -> Criterion (a Criterion passes through)."""
     if isinstance(text, Criterion):
         return text
-    match = _TEXT.match(str(text))
-    if not match:
+    try:
+        metric, op, value = split_criterion(text)
+    except ValueError:
         raise InputError(
             "criteria", text, "write METRIC >= VALUE (or <=, >, <), e.g. contact_min_per_day >= 20"
-        )
-    metric, op, value = match.groups()
+        ) from None
     try:
         threshold = float(value)
     except ValueError:
@@ -121,13 +131,7 @@ def apply_criteria(frame: Any, criteria: Sequence[str | Criterion]) -> Any:
         passes &= ok
         unit = units.get(c.metric, "")
         for k in np.flatnonzero(~ok):  # only failing cases: a short loop of string building
-            if math.isfinite(values[k]):
-                why = (
-                    f"{c.metric} = {values[k]:.6g} {unit}".rstrip()
-                    + f", needs {c.op} {c.threshold:g}"
-                )
-            else:
-                why = f"{c.metric} not computed for this case"
+            why = failure_reason(c, float(values[k]), unit)
             reasons[k] = why if not reasons[k] else f"{reasons[k]}; {why}"
     if "error" in frame.columns:
         failed = frame["error"].astype(str).to_numpy() != ""
