@@ -196,6 +196,8 @@ def assemble_record(
 
 
 def _history(ledger: Any, record: dict[str, Any], revision: int) -> list[dict[str, Any]]:
+    from .signoff import signoff_summaries
+
     earlier = [r for r in ledger.revisions(record["record_id"]) if r.revision < revision]
     records = [ledger.record(record["record_id"], r.revision) for r in earlier] + [record]
     history = []
@@ -209,9 +211,33 @@ def _history(ledger: Any, record: dict[str, Any], revision: int) -> list[dict[st
                 "author": r["prepared"]["name"],
                 "note": r["note"],
                 "changes": changes,
+                "signoffs": []
+                if r is record
+                else signoff_summaries(ledger, record["record_id"], r["revision"]),
             }
         )
     return history
+
+
+def _prepared_by(record: dict[str, Any], signer: Any) -> list[str]:
+    """Name the signer as the record's preparer (in place); messages for the user."""
+    stated = record["prepared"].get("name", "")
+    record["prepared"]["name"] = signer.name
+    if stated and stated != signer.name:
+        return [
+            f"the notebook names the author {stated!r}; the record is prepared and signed by "
+            f"{signer.name!r} (from the certificate)"
+        ]
+    return []
+
+
+def _sign_prepared(record: dict[str, Any], signer: Any, notebook_bytes: bytes) -> None:
+    """Open the record's chain of sign-offs with ``signer``'s signature as prepared."""
+    from .ledger import sha256_hex, utc_now
+    from .signatures import signed_entry
+
+    hashes = {"notebook.ipynb": sha256_hex(notebook_bytes)}
+    record["signoffs"] = [signed_entry(record, "prepared", signer, utc_now(), hashes)]
 
 
 def build(
@@ -221,8 +247,12 @@ def build(
     ledger_dir: str | Path | None = None,
     note: str = "",
     progress: bool = True,
+    signer: Any = None,
 ) -> BuildOutcome:
-    """Build the record of ``nb_path`` into the ledger (default ``ledger/`` beside the notebook)."""
+    """Build the record of ``nb_path`` into the ledger (default ``ledger/`` beside the notebook).
+
+    ``signer`` (``keys.load_signer``) signs the record as prepared (see ``record_run``).
+    """
 
     unknown = set(to) - {"html", "pdf"}
     if unknown or not to:
@@ -238,7 +268,14 @@ def build(
             read_notebook(nb_path), nb_path.parent, name=nb_path.name, progress=progress
         )
         return record_run(
-            nb_path, executed, manifest, to=to, ledger_dir=ledger_dir, note=note, printer=printer
+            nb_path,
+            executed,
+            manifest,
+            to=to,
+            ledger_dir=ledger_dir,
+            note=note,
+            printer=printer,
+            signer=signer,
         )
     finally:
         if printer is not None:
@@ -254,26 +291,33 @@ def record_run(
     ledger_dir: str | Path | None = None,
     note: str = "",
     printer: Any = None,
+    signer: Any = None,
 ) -> BuildOutcome:
     """Assemble, render and commit the record of an executed study (the second half of build).
 
     ``printer`` is a ``render_pdf.PdfPrinter`` started earlier, if any (else one is started).
+    ``signer`` (a ``keys.Signer``) signs the record as prepared: the preparer's name comes from
+    its certificate, a signed sign-off opens the record's chain, and the PDF gets its first
+    PAdES signature.
     """
     from .ledger import Ledger
     from .render_html import render_html
 
     nb_path = Path(nb_path).resolve()
     record = assemble_record(nb_path, executed, manifest, note=note)
+    messages = _prepared_by(record, signer) if signer is not None else []
     ledger = Ledger(ledger_dir if ledger_dir is not None else nb_path.parent / "ledger")
     reservation = ledger.reserve(
         record["record_id"], title=record["title"], author=record["prepared"]["name"], note=note
     )
-    outcome = BuildOutcome(record["record_id"], reservation.revision, record)
+    outcome = BuildOutcome(record["record_id"], reservation.revision, record, messages=messages)
     try:
         record["revision"] = reservation.revision
         record["history"] = _history(ledger, record, reservation.revision)
-        html = render_html(executed, record)
         notebook_bytes = nbformat.writes(archived_notebook(executed)).encode("utf-8")
+        if signer is not None:
+            _sign_prepared(record, signer, notebook_bytes)
+        html = render_html(executed, record)
         record_bytes = rec.canonical_dumps(record).encode("utf-8")
         outcome.files["html"] = ledger.write_artifact(
             reservation, "record.html", html.encode("utf-8")
@@ -282,6 +326,12 @@ def record_run(
         outcome.files["notebook"] = ledger.write_artifact(
             reservation, "notebook.ipynb", notebook_bytes
         )
+        if signer is not None:
+            from .signatures import detached_file
+
+            outcome.files["signatures"] = ledger.write_artifact(
+                reservation, "record.sig.json", detached_file(record)
+            )
         if "pdf" in to:
             from .render_pdf import BrowserMissing, PdfPrinter
 
@@ -290,6 +340,10 @@ def record_run(
             except BrowserMissing as err:
                 outcome.messages.append(str(err))
             else:
+                if signer is not None:
+                    from .sign_pdf import sign_pdf
+
+                    pdf = sign_pdf(pdf, signer, "prepared", record["signoffs"][0]["time_utc"])
                 outcome.files["pdf"] = ledger.write_artifact(reservation, "record.pdf", pdf)
         if "html" not in to:
             outcome.messages.append(
