@@ -88,7 +88,8 @@ def trust_problem(
         return f"not trusted: no certificate of the trust list issued it (issuer {issuer})", ""
     except (PathValidationError, ValidationError) as err:
         return f"not trusted: {err}", ""
-    anchor = path.trust_anchor.authority.name.human_friendly
+    name = path.trust_anchor.authority.name
+    anchor = name.native.get("common_name") or name.human_friendly
     if any(cert_fingerprint(a) == cert_fingerprint(cert) for a in anchors):
         return None, "trusted (on the trust list itself)"
     return None, f"trusted (issued under {anchor})"
