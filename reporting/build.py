@@ -198,6 +198,8 @@ def assemble_record(
 
 
 def _history(ledger: Any, record: dict[str, Any], revision: int) -> list[dict[str, Any]]:
+    from .signoff import signoff_summaries
+
     earlier = [r for r in ledger.revisions(record["record_id"]) if r.revision < revision]
     records = [ledger.record(record["record_id"], r.revision) for r in earlier] + [record]
     history = []
@@ -211,9 +213,33 @@ def _history(ledger: Any, record: dict[str, Any], revision: int) -> list[dict[st
                 "author": r["prepared"]["name"],
                 "note": r["note"],
                 "changes": changes,
+                "signoffs": []
+                if r is record
+                else signoff_summaries(ledger, record["record_id"], r["revision"]),
             }
         )
     return history
+
+
+def _prepared_by(record: dict[str, Any], signer: Any) -> list[str]:
+    """Name the signer as the record's preparer (in place); messages for the user."""
+    stated = record["prepared"].get("name", "")
+    record["prepared"]["name"] = signer.name
+    if stated and stated != signer.name:
+        return [
+            f"the notebook names the author {stated!r}; the record is prepared and signed by "
+            f"{signer.name!r} (from the certificate)"
+        ]
+    return []
+
+
+def _sign_prepared(record: dict[str, Any], signer: Any, notebook_bytes: bytes) -> None:
+    """Open the record's chain of sign-offs with ``signer``'s signature as prepared."""
+    from .ledger import sha256_hex, utc_now
+    from .signatures import signed_entry
+
+    hashes = {"notebook.ipynb": sha256_hex(notebook_bytes)}
+    record["signoffs"] = [signed_entry(record, "prepared", signer, utc_now(), hashes)]
 
 
 def build(
@@ -225,12 +251,15 @@ def build(
     progress: bool = True,
     strict: bool = False,
     accept_failing: str | None = None,
+    signer: Any = None,
 ) -> BuildOutcome:
     """Build the record of ``nb_path`` into the ledger (default ``ledger/`` beside the notebook).
 
     ``strict=True`` refuses to write a record in which a criterion fails
     (``findings.FailingCriteria``, nothing written) unless ``accept_failing`` gives the reason
     to record it anyway; the reason is kept in the record and shown on its cover.
+
+    ``signer`` (``keys.load_signer``) signs the record as prepared (see ``record_run``).
     """
 
     unknown = set(to) - {"html", "pdf"}
@@ -256,6 +285,7 @@ def build(
             printer=printer,
             strict=strict,
             accept_failing=accept_failing,
+            signer=signer,
         )
     finally:
         if printer is not None:
@@ -273,11 +303,15 @@ def record_run(
     printer: Any = None,
     strict: bool = False,
     accept_failing: str | None = None,
+    signer: Any = None,
 ) -> BuildOutcome:
     """Assemble, render and commit the record of an executed study (the second half of build).
 
     ``printer`` is a ``render_pdf.PdfPrinter`` started earlier, if any (else one is started).
     ``strict`` and ``accept_failing``: see :func:`build`.
+    ``signer`` (a ``keys.Signer``) signs the record as prepared: the preparer's name comes from
+    its certificate, a signed sign-off opens the record's chain, and the PDF gets its first
+    PAdES signature.
     """
     from .findings import refuse_failing
     from .ledger import Ledger
@@ -287,18 +321,21 @@ def record_run(
     record = assemble_record(nb_path, executed, manifest, note=note, accept_failing=accept_failing)
     if strict:
         refuse_failing(record["findings"])
+    messages = _prepared_by(record, signer) if signer is not None else []
     ledger = Ledger(ledger_dir if ledger_dir is not None else nb_path.parent / "ledger")
     reservation = ledger.reserve(
         record["record_id"], title=record["title"], author=record["prepared"]["name"], note=note
     )
-    outcome = BuildOutcome(record["record_id"], reservation.revision, record)
+    outcome = BuildOutcome(record["record_id"], reservation.revision, record, messages=messages)
     if accept_failing is not None and not record["findings"]["failing"]:
         outcome.messages.append("--accept-failing given, but every criterion holds")
     try:
         record["revision"] = reservation.revision
         record["history"] = _history(ledger, record, reservation.revision)
-        html = render_html(executed, record)
         notebook_bytes = nbformat.writes(archived_notebook(executed)).encode("utf-8")
+        if signer is not None:
+            _sign_prepared(record, signer, notebook_bytes)
+        html = render_html(executed, record)
         record_bytes = rec.canonical_dumps(record).encode("utf-8")
         outcome.files["html"] = ledger.write_artifact(
             reservation, "record.html", html.encode("utf-8")
@@ -307,6 +344,12 @@ def record_run(
         outcome.files["notebook"] = ledger.write_artifact(
             reservation, "notebook.ipynb", notebook_bytes
         )
+        if signer is not None:
+            from .signatures import detached_file
+
+            outcome.files["signatures"] = ledger.write_artifact(
+                reservation, "record.sig.json", detached_file(record)
+            )
         if "pdf" in to:
             from .render_pdf import BrowserMissing, PdfPrinter
 
@@ -315,6 +358,10 @@ def record_run(
             except BrowserMissing as err:
                 outcome.messages.append(str(err))
             else:
+                if signer is not None:
+                    from .sign_pdf import sign_pdf
+
+                    pdf = sign_pdf(pdf, signer, "prepared", record["signoffs"][0]["time_utc"])
                 outcome.files["pdf"] = ledger.write_artifact(reservation, "record.pdf", pdf)
         if "html" not in to:
             outcome.messages.append(

@@ -202,27 +202,36 @@ def constants_table(inputs: list[dict[str, Any]]) -> list[dict[str, Any]]:
     return [g for g in groups if g["rows"]]
 
 
+def signoff_row(role: str, s: dict[str, Any] | None) -> dict[str, str]:
+    """One sign-off as the cover and the history show it: name, organisation, time,
+    certificate SHA-256 and whether it is signed (a typed name is "unsigned")."""
+    if not s:
+        return {"role": role.capitalize(), "name": "", "org": "", "time": "", "cert": "", "state": ""}
+    state = {True: "signed", False: "unsigned"}.get(s.get("signed"), "unknown")
+    return {
+        "role": role.capitalize(),
+        "name": s.get("name") or "(not stated)",
+        "org": s.get("org", ""),
+        "time": s.get("time_utc", ""),
+        "cert": s.get("cert_sha256", ""),
+        "state": state,
+    }
+
+
 def _signoff_rows(record: dict[str, Any]) -> list[dict[str, str]]:
-    rows = [
-        {
-            "role": "Prepared",
-            "name": record["prepared"].get("name") or "(not stated)",
-            "time": record["prepared"].get("time_utc", ""),
-            "hash": "",
-        }
-    ]
     given = {s["role"]: s for s in record.get("signoffs", [])}
-    for role in ("checked", "approved"):
-        s = given.get(role)
-        rows.append(
-            {
-                "role": role.capitalize(),
-                "name": s["name"] if s else "",
-                "time": s["time_utc"] if s else "",
-                "hash": s.get("artifact_sha256", "") if s else "",
-            }
-        )
-    return rows
+    prepared = given.get("prepared") or {**record["prepared"], "signed": False}
+    return [signoff_row("prepared", prepared)] + [
+        signoff_row(role, given.get(role)) for role in ("checked", "approved")
+    ]
+
+
+def _history_signoffs(record: dict[str, Any]) -> dict[Any, list[dict[str, str]]]:
+    """Revision -> its sign-offs: this revision's own chain, earlier ones as the history has them."""
+    out = {h["revision"]: [signoff_row(s["role"], s) for s in h.get("signoffs", [])]
+           for h in record.get("history", [])}  # fmt: skip
+    out[record.get("revision")] = [signoff_row(s["role"], s) for s in record.get("signoffs", [])]
+    return out
 
 
 def _bokeh_js(nb: Any) -> Markup:
@@ -279,6 +288,7 @@ def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
         "revision_label": str(rev) if rev is not None else "unrecorded",
         "footer_label": f"{record['record_id']} rev {rev if rev is not None else 'unrecorded'}",
         "signoffs": _signoff_rows(record),
+        "history_signoffs": _history_signoffs(record),
         "inputs": inputs,
         "input_tables": inputs_side_by_side(record.get("inputs", [])),
         "constant_groups": constants_table(record.get("inputs", [])),

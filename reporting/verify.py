@@ -11,6 +11,9 @@ record (``record.json``), then checks:
 - every standard result, recomputed from the embedded inputs with
   ``orbitledger.analysis.case_results`` and compared within the tolerance the record states.
 
+The signatures (sign-offs, PDF signatures, the detached ``.sig.json`` beside, and with a
+trust list who issued each certificate) are checked by ``verify_signatures``.
+
 It never runs notebook code. ``execute=True`` (``--execute``) also re-runs the embedded notebook
 in a clean kernel (after a warning) and compares its named results with the record's.
 """
@@ -97,6 +100,11 @@ def read_record(path: str | Path) -> tuple[dict[str, Any], dict[str, Any]]:
     if data[:5] == b"%PDF-":
         return _read_pdf(path)
     text = data.decode("utf-8", errors="replace")
+    if path.suffix == ".json" and text.lstrip().startswith("{"):  # a record's JSON on its own
+        try:
+            return json.loads(text), {"kind": "json"}
+        except json.JSONDecodeError as err:
+            raise InputError("RECORD", str(path), f"the record JSON does not parse: {err}") from None
     found = _RECORD_SCRIPT.search(text)
     if not found:
         raise InputError("RECORD", str(path), "not an orbitledger record (no embedded record JSON)")
@@ -239,6 +247,8 @@ def _check_standard(
 
 
 def _check_extras(report: VerifyReport, record: dict[str, Any], extras: dict[str, Any]) -> None:
+    if extras["kind"] == "json":
+        return  # nothing drawn or attached beside the JSON itself
     if extras["kind"] == "html":
         stated = record.get("figures", [])
         drawn = extras["figures"]
@@ -314,9 +324,18 @@ def verify_record(record: dict[str, Any], extras: dict[str, Any], path: str = ""
     return report
 
 
-def verify_file(path: str | Path, *, execute: bool = False) -> VerifyReport:
+def verify_file(
+    path: str | Path, *, execute: bool = False, trust: str | Path | None = None
+) -> VerifyReport:
+    """Every check on the record at ``path``; ``trust``: a trust list for its signatures."""
+    from .verify_signatures import check_signatures, load_trust
+
+    if trust is not None:
+        load_trust(trust)  # a bad trust list is bad input (exit 2), before any check runs
     record, extras = read_record(path)
     report = verify_record(record, extras, str(path))
+    if report.checks and report.checks[0].ok:  # the record schema is known
+        check_signatures(report, path, record, extras, trust)
     if execute:
         _check_by_running(report, record)
     return report

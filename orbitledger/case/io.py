@@ -53,11 +53,15 @@ def load_case(path: str | os.PathLike) -> Case:
     return parse_case(_read_bytes(path), path)
 
 
-def atomic_write_text(path: str | os.PathLike, text: str, *, exclusive: bool = False) -> bytes:
+def atomic_write_text(
+    path: str | os.PathLike, text: str, *, exclusive: bool = False, mode: int | None = None
+) -> bytes:
     """Write ``text`` (UTF-8) to ``path`` atomically; returns the bytes written.
 
     ``exclusive=True`` refuses (FileExistsError) when ``path`` exists, also atomically: the
-    temporary file is hard-linked into place, which fails if the name is taken.
+    temporary file is hard-linked into place, which fails if the name is taken. ``mode`` sets
+    the file's permissions (e.g. 0o600 for a private key; the temporary file is 0600 from its
+    creation, so the text is never readable by others on the way).
     """
     path = Path(path)
     data = text.encode("utf-8")
@@ -68,18 +72,20 @@ def atomic_write_text(path: str | os.PathLike, text: str, *, exclusive: bool = F
             stream.write(data)
             stream.flush()
             os.fsync(stream.fileno())
-        try:
-            mode = path.stat().st_mode & 0o777
-        except FileNotFoundError:
-            umask = os.umask(0)
-            os.umask(umask)
-            mode = 0o666 & ~umask
+        if mode is None:
+            try:
+                mode = path.stat().st_mode & 0o777
+            except FileNotFoundError:
+                umask = os.umask(0)
+                os.umask(umask)
+                mode = 0o666 & ~umask
         os.chmod(temporary, mode)
         if exclusive:
             try:
                 os.link(temporary, path)
             except (AttributeError, NotImplementedError, PermissionError):
                 with open(path, "xb") as stream:  # file systems without hard links
+                    os.chmod(path, mode)
                     stream.write(data)
                     stream.flush()
                     os.fsync(stream.fileno())

@@ -24,6 +24,7 @@ VERB_MODULES = [
     "orbitledger.cli.exchange_verbs",  # import, export, ephemeris-diff
     "orbitledger.cli.trade_verbs",  # sweep, disperse
     "orbitledger.cli.report_verbs",  # build, history, diff, sign, verify, demo
+    "orbitledger.cli.keys_verbs",  # keys new, keys new-ca
 ]
 
 

@@ -1,5 +1,8 @@
 """Verbs of calculation records: build, history, diff, sign, verify, demo.
 
+``sign`` and ``build`` sign with ``--key`` (PEM PKCS#8 or PKCS#12) and ``--cert``; ``sign
+--name`` without a key records an unsigned sign-off. ``verify --trust`` checks who signed.
+
 Default ledger: ``build`` uses ``ledger/`` beside the study notebook; ``history``, ``diff`` and
 ``sign`` use ``./ledger`` in the current folder. ``--ledger DIR`` (or the environment variable
 ``ORBITLEDGER_LEDGER``) chooses another one for every verb.
@@ -61,6 +64,28 @@ def _print_outcome(outcome) -> None:
         print(f"orbitledger: {message}", file=sys.stderr)
 
 
+def _signer(args: argparse.Namespace, *, required: bool = False):
+    """The key and certificate of ``--key``/``--cert``/``--passphrase-file``, or None."""
+    from orbitledger.reporting.keys import load_signer, read_passphrase
+
+    if args.key is None:
+        if args.cert is not None or args.passphrase_file is not None:
+            raise UsageError("--cert and --passphrase-file go with --key KEY.key.pem (or KEY.p12)")
+        if required:
+            raise UsageError("give --key KEY.key.pem --cert KEY.cert.pem, or --name NAME (unsigned)")
+        return None
+    signer = load_signer(args.key, args.cert, read_passphrase(args.passphrase_file))
+    for message in signer.messages:
+        print(f"orbitledger {args.verb}: {message}", file=sys.stderr)
+    return signer
+
+
+def _add_key_options(p: argparse.ArgumentParser, role: str) -> None:
+    p.add_argument("--key", metavar="KEY.key.pem", help=f"sign as {role} with this key (PEM PKCS#8 or .p12)")
+    p.add_argument("--cert", metavar="KEY.cert.pem", help="the key's certificate (inside a .p12 already)")
+    p.add_argument("--passphrase-file", metavar="FILE", help="the key's passphrase, on the first line")
+
+
 def _run_build(args: argparse.Namespace) -> int:
     from orbitledger.reporting.build import BuildError, build
     from orbitledger.reporting.findings import FailingCriteria
@@ -69,6 +94,7 @@ def _run_build(args: argparse.Namespace) -> int:
     study = Path(args.study)
     to = _formats(args.to)
     ledger = _ledger_dir(args, study.resolve().parent / "ledger")
+    signer = _signer(args)
     try:
         outcome = build(
             study,
@@ -77,6 +103,7 @@ def _run_build(args: argparse.Namespace) -> int:
             note=args.note or "",
             strict=args.strict,
             accept_failing=args.accept_failing,
+            signer=signer,
         )
     except FailingCriteria as err:  # a check that did not hold: exit 1
         print(
@@ -92,7 +119,16 @@ def _run_build(args: argparse.Namespace) -> int:
     return 0
 
 
+def _signoff_line(s: dict) -> str:
+    state = {True: "signed", False: "UNSIGNED"}.get(s["signed"], f"unknown: {s.get('problem')}")
+    org = f" ({s['org']})" if s.get("org") else ""
+    cert = f", certificate SHA-256 {s['cert_sha256'][:16]}..." if s.get("cert_sha256") else ""
+    return f"{s['role']} by {s['name']}{org} at {s['time_utc']}, {state}{cert}"
+
+
 def _run_history(args: argparse.Namespace) -> int:
+    from orbitledger.reporting.signoff import signoff_summaries
+
     ledger = _open_ledger(args)
     revisions = ledger.revisions(args.record_id)
     if not revisions:
@@ -106,11 +142,8 @@ def _run_history(args: argparse.Namespace) -> int:
         print(
             f"  rev {r.revision:<3} {r.built_utc}  {r.status:<8}  {r.author or '-'}  {r.note or ''}".rstrip()
         )
-        signoffs = ledger.signoffs(args.record_id, r.revision)
-        for s in signoffs:
-            print(
-                f"           {s.role} by {s.name} at {s.time_utc} (artifact {s.artifact_sha256[:16]}...)"
-            )
+        for s in signoff_summaries(ledger, args.record_id, r.revision):
+            print(f"           {_signoff_line(s)}")
         for line in changes.get(r.revision, []):
             print(f"           - {line}")
     return 0
@@ -130,11 +163,22 @@ def _run_sign(args: argparse.Namespace) -> int:
     from orbitledger.reporting.signoff import sign
 
     _log_to_stderr()
+    if args.key is None and not args.name:
+        raise UsageError("give --key KEY.key.pem --cert KEY.cert.pem, or --name NAME (unsigned)")
+    signer = _signer(args)
     ledger = _open_ledger(args)
-    done = sign(ledger, args.record_id, args.rev, args.role, args.name)
+    done = sign(
+        ledger, args.record_id, args.rev, args.role, args.name,
+        signer=signer, note=args.note or "", tsa_url=getattr(args, "tsa", None),
+    )  # fmt: skip
+    org = f" ({done.org})" if done.org else ""
     print(
-        f"{done.record_id} revision {done.revision}: {done.role} by {done.name} at {done.time_utc}"
+        f"{done.record_id} revision {done.revision}: {done.role} by {done.name}{org} at {done.time_utc}"
     )
+    if done.signed:
+        print(f"  signed with the certificate SHA-256 {done.cert_sha256}")
+    else:
+        print("  UNSIGNED: a typed name without a key; records and verify show it as unsigned")
     print(f"  refers to record.html SHA-256 {done.artifact_sha256}")
     for name, path in done.files.items():
         print(f"  {name:<22}{path}")
@@ -152,7 +196,7 @@ def _run_verify(args: argparse.Namespace) -> int:
             "Python kernel, with your permissions. Only do this for a record you trust.",
             file=sys.stderr,
         )
-    report = verify_file(args.record, execute=args.execute)
+    report = verify_file(args.record, execute=args.execute, trust=args.trust)
     sys.stdout.write(report.text())
     return 0 if report.ok else 1
 
@@ -201,6 +245,7 @@ def register(subparsers) -> None:
         metavar="REASON",
         help="record it although a criterion fails; the reason is kept in the record",
     )
+    _add_key_options(p, "prepared")
     p.set_defaults(run=_run_build)
 
     p = subparsers.add_parser("history", help="the revisions of a record, with what changed")
@@ -223,16 +268,23 @@ def register(subparsers) -> None:
     p.add_argument("record_id", metavar="RECORD_ID")
     p.add_argument("rev", metavar="REV", type=_revision)
     p.add_argument("--role", required=True, choices=["checked", "approved"])
-    p.add_argument("--name", required=True, help="who signs")
+    _add_key_options(p, "this role")
+    p.add_argument("--name", help="without --key: who signs (recorded as UNSIGNED)")
+    p.add_argument("--note", default="", help="a remark kept with the sign-off")
     p.add_argument("--ledger", metavar="DIR", help="ledger folder (default ./ledger)")
     p.set_defaults(run=_run_sign)
 
     p = subparsers.add_parser(
         "verify", help="check a record from the file alone (exit 1 if anything differs)"
     )
-    p.add_argument("record", metavar="RECORD.html|RECORD.pdf")
+    p.add_argument("record", metavar="RECORD.html|RECORD.pdf|RECORD.json")
     p.add_argument(
         "--execute", action="store_true", help="also re-run the embedded notebook (runs its code)"
+    )
+    p.add_argument(
+        "--trust",
+        metavar="CERTS.pem|DIR",
+        help="accept only signatures whose certificate is, or is issued by, one of these",
     )
     p.set_defaults(run=_run_verify)
 
