@@ -80,7 +80,7 @@ def sign(ledger: Ledger, record_id: str, revision: int, role: str, name: str) ->
     signed["signoffs"].append(entry)
     signed["status"] = role
     executed = nbformat.reads(
-        ledger.artifact_path(notebook).read_text(encoding="utf-8"), as_version=4
+        ledger.read_artifact(notebook).decode("utf-8"), as_version=4
     )
     html = render_html(executed, signed)
     files = {
@@ -93,13 +93,13 @@ def sign(ledger: Ledger, record_id: str, revision: int, role: str, name: str) ->
 
         try:
             files[f"record-{role}.pdf"] = print_record_pdf(
-                html, signed, ledger.artifact_path(notebook).read_bytes()
+                html, signed, ledger.read_artifact(notebook)
             )
         except BrowserMissing as err:
             messages.append(str(err))
     signoff = SignOff(role, name.strip(), now, original.sha256)
     ledger.add_signoff(record_id, revision, signoff, files, status=role)
-    paths = {n: ledger.path_inside("records", record_id, f"r{revision:04d}", n) for n in files}
+    paths = {n: ledger.location(record_id, revision, n) for n in files}
     return SignResult(
         record_id, revision, role, name.strip(), now, original.sha256, paths, tuple(messages)
     )

@@ -1,18 +1,19 @@
 """Verbs of calculation records: build, history, diff, sign, verify, demo.
 
 Default ledger: ``build`` uses ``ledger/`` beside the study notebook; ``history``, ``diff`` and
-``sign`` use ``./ledger`` in the current folder. ``--ledger DIR`` (or the environment variable
-``ORBITLEDGER_LEDGER``) chooses another one for every verb.
+``sign`` use ``./ledger`` in the current folder. ``--ledger ADDRESS`` (a folder or a
+``postgresql://`` address; or the environment variable ``ORBITLEDGER_LEDGER``) chooses another
+one for every verb. history and diff live in ``ledger_verbs``, beside index and ledger.
 """
 
 from __future__ import annotations
 
 import argparse
 import logging
-import os
 import sys
 from pathlib import Path
 
+from .ledger_verbs import register_history_diff
 from .main import UsageError
 
 __all__ = ["register"]
@@ -27,22 +28,16 @@ def _log_to_stderr() -> None:
         log.setLevel(logging.INFO)
 
 
-def _ledger_dir(args: argparse.Namespace, default: Path) -> Path:
-    if args.ledger:
-        return Path(args.ledger)
-    env = os.environ.get("ORBITLEDGER_LEDGER")
-    return Path(env) if env else default
+def _ledger_dir(args: argparse.Namespace, default: Path) -> str | Path:
+    from orbitledger.reporting.ledger import ledger_address
+
+    return ledger_address(args.ledger, default)
 
 
 def _open_ledger(args: argparse.Namespace):
-    from orbitledger.reporting.ledger import Ledger
+    from .ledger_verbs import open_for_reading
 
-    folder = _ledger_dir(args, Path.cwd() / "ledger")
-    if not (folder / "index.sqlite").is_file():
-        raise UsageError(
-            f"--ledger {folder}: no ledger there (build a record first, or pass --ledger DIR)"
-        )
-    return Ledger(folder)
+    return open_for_reading(args)
 
 
 def _formats(text: str) -> tuple[str, ...]:
@@ -79,40 +74,6 @@ def _run_build(args: argparse.Namespace) -> int:
     return 0
 
 
-def _run_history(args: argparse.Namespace) -> int:
-    ledger = _open_ledger(args)
-    revisions = ledger.revisions(args.record_id)
-    if not revisions:
-        raise UsageError(
-            f"{args.record_id}: no revisions in {ledger.root} (known: {', '.join(ledger.record_ids()) or 'none'})"
-        )
-    record = ledger.record(args.record_id, revisions[-1].revision)
-    changes = {h["revision"]: h["changes"] for h in record.get("history", [])}
-    print(f"{args.record_id}: {revisions[-1].title}")
-    for r in revisions:
-        print(
-            f"  rev {r.revision:<3} {r.built_utc}  {r.status:<8}  {r.author or '-'}  {r.note or ''}".rstrip()
-        )
-        signoffs = ledger.signoffs(args.record_id, r.revision)
-        for s in signoffs:
-            print(
-                f"           {s.role} by {s.name} at {s.time_utc} (artifact {s.artifact_sha256[:16]}...)"
-            )
-        for line in changes.get(r.revision, []):
-            print(f"           - {line}")
-    return 0
-
-
-def _run_diff(args: argparse.Namespace) -> int:
-    from orbitledger.reporting.diff import diff_records, format_side_by_side
-
-    ledger = _open_ledger(args)
-    a = ledger.record(args.record_id, args.rev_a)
-    b = ledger.record(args.record_id, args.rev_b)
-    sys.stdout.write(format_side_by_side(diff_records(a, b), args.rev_a, args.rev_b))
-    return 0
-
-
 def _run_sign(args: argparse.Namespace) -> int:
     from orbitledger.reporting.signoff import sign
 
@@ -132,6 +93,11 @@ def _run_sign(args: argparse.Namespace) -> int:
 
 def _run_verify(args: argparse.Namespace) -> int:
     from orbitledger.reporting.verify import verify_file
+
+    if args.record is None:  # verify --ledger ADDRESS: the whole ledger and its hash chain
+        from .ledger_verbs import verify_whole_ledger
+
+        return verify_whole_ledger(args)
 
     if args.execute:
         print(
@@ -167,34 +133,20 @@ def _revision(text: str) -> int:
 
 
 def register(subparsers) -> None:
-    ledger_help = "ledger folder (default: see 'orbitledger build --help'; env ORBITLEDGER_LEDGER)"
-
     p = subparsers.add_parser(
         "build", help="run a study notebook cleanly and record it in the ledger"
     )
     p.add_argument("study", metavar="STUDY.ipynb")
     p.add_argument("--to", default="html", help="html, pdf or html,pdf (default html)")
     p.add_argument(
-        "--ledger", metavar="DIR", help="ledger folder (default: ledger/ beside the notebook)"
+        "--ledger",
+        metavar="ADDRESS",
+        help="ledger folder or postgresql://user@host/db (default: ledger/ beside the notebook)",
     )
     p.add_argument("--note", default="", help="what changed in this revision")
     p.set_defaults(run=_run_build)
 
-    p = subparsers.add_parser("history", help="the revisions of a record, with what changed")
-    p.add_argument("record_id", metavar="RECORD_ID")
-    p.add_argument(
-        "--ledger",
-        metavar="DIR",
-        help=ledger_help.replace("see 'orbitledger build --help'", "./ledger"),
-    )
-    p.set_defaults(run=_run_history)
-
-    p = subparsers.add_parser("diff", help="inputs and results of two revisions side by side")
-    p.add_argument("record_id", metavar="RECORD_ID")
-    p.add_argument("rev_a", metavar="REV_A", type=_revision)
-    p.add_argument("rev_b", metavar="REV_B", type=_revision)
-    p.add_argument("--ledger", metavar="DIR", help="ledger folder (default ./ledger)")
-    p.set_defaults(run=_run_diff)
+    register_history_diff(subparsers)
 
     p = subparsers.add_parser("sign", help="sign off a revision: checked, then approved")
     p.add_argument("record_id", metavar="RECORD_ID")
@@ -207,7 +159,12 @@ def register(subparsers) -> None:
     p = subparsers.add_parser(
         "verify", help="check a record from the file alone (exit 1 if anything differs)"
     )
-    p.add_argument("record", metavar="RECORD.html|RECORD.pdf")
+    p.add_argument("record", metavar="RECORD.html|RECORD.pdf", nargs="?")
+    p.add_argument(
+        "--ledger",
+        metavar="ADDRESS",
+        help="without RECORD: check a whole ledger (folder or postgresql://), its hash chain",
+    )
     p.add_argument(
         "--execute", action="store_true", help="also re-run the embedded notebook (runs its code)"
     )
