@@ -221,7 +221,10 @@ def _history(ledger: Any, record: dict[str, Any], revision: int) -> list[dict[st
         return [*kept, entry(record, revision, previous)]
     records = [ledger.record(record["record_id"], n) for n in earlier[:-1]] + [previous, record]
     numbers = [*earlier, revision]
-    return [entry(r, n, records[i - 1] if i else None) for i, (r, n) in enumerate(zip(records, numbers, strict=True))]
+    return [
+        entry(r, n, records[i - 1] if i else None)
+        for i, (r, n) in enumerate(zip(records, numbers, strict=True))
+    ]
 
 
 def build(

@@ -134,7 +134,6 @@ class LedgerBase(ABC):
     ) -> None:
         """``ledger copy``: add one revision whole (or its missing sign-offs) in one transaction."""
 
-
     # --- the build protocol --------------------------------------------------------------
 
     @contextmanager
@@ -174,7 +173,9 @@ class LedgerBase(ABC):
     def revisions(self, record_id: str) -> list[RevisionInfo]:
         """The committed revisions of ``record_id`` in order, each with its status."""
         validate_record_id(record_id)
-        rows = self._query(_REVISIONS_SQL + " WHERE r.record_id = ? ORDER BY r.revision", (record_id,))
+        rows = self._query(
+            _REVISIONS_SQL + " WHERE r.record_id = ? ORDER BY r.revision", (record_id,)
+        )
         return [RevisionInfo(*row) for row in rows]
 
     def record_ids(self) -> list[str]:
@@ -218,7 +219,9 @@ class LedgerBase(ABC):
 
     def record_changes(self, record_id: str) -> dict[int, list[str]]:
         """What changed in each revision of a record id (its history entry), by revision."""
-        rows = self._query("SELECT revision, changes FROM revisions WHERE record_id = ?", (record_id,))
+        rows = self._query(
+            "SELECT revision, changes FROM revisions WHERE record_id = ?", (record_id,)
+        )
         return {int(rev): json.loads(text or "[]") for rev, text in rows}
 
     def committed_utc(self, record_id: str, revision: int) -> str:
@@ -316,7 +319,9 @@ class LedgerBase(ABC):
         if signoff.role not in ROLE_NEEDS:
             raise InputError("--role", signoff.role, "choose checked or approved")
         if status not in (signoff.role, status_of([signoff.role])):
-            raise InputError("status", status, f"a {signoff.role} sign-off sets it to {signoff.role}")
+            raise InputError(
+                "status", status, f"a {signoff.role} sign-off sets it to {signoff.role}"
+            )
         try:
             revision = int(revision)
         except (TypeError, ValueError):

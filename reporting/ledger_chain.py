@@ -42,7 +42,9 @@ class LedgerReport:
         lines += [f"  note {n}" for n in self.notes]
         failed = sum(not ok for _, ok, _ in self.checks)
         total = len(self.checks)
-        lines.append(f"{total} checks, all hold" if not failed else f"{failed} of {total} checks differ")
+        lines.append(
+            f"{total} checks, all hold" if not failed else f"{failed} of {total} checks differ"
+        )
         return "\n".join(lines) + "\n"
 
 
@@ -124,9 +126,13 @@ def _follow(ledger: Any, record_id: str, report: LedgerReport) -> None:
                     f"revision {n}: the {s.role} sign-off cites SHA-256 {s.artifact_sha256[:16]}..., "
                     f"record.html is {html.sha256[:16]}..."
                 )
-        raw = data if data is not None else (ledger._record_text(record_id, n) or "").encode("utf-8")
+        raw = (
+            data if data is not None else (ledger._record_text(record_id, n) or "").encode("utf-8")
+        )
         previous_sha, previous_number = sha256_hex(raw), n
-    report.add(f"{record_id}: hash chain of {len(numbers)} revisions", not problems, "; ".join(problems))
+    report.add(
+        f"{record_id}: hash chain of {len(numbers)} revisions", not problems, "; ".join(problems)
+    )
     if unlinked:
         report.notes.append(
             f"{record_id}: revision {', '.join(map(str, unlinked))} predate the hash chain "

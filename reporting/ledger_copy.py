@@ -46,14 +46,20 @@ def _checked(ledger: Any, artifact: Artifact) -> bytes:
 def _refuse_foreign(source: Any, target: Any) -> None:
     """Refuse a target holding anything the source does not (checked before any write)."""
     for record_id in target.record_ids():
-        have = {r.revision: r for r in source.revisions(record_id)} if _known(source, record_id) else {}
+        have = (
+            {r.revision: r for r in source.revisions(record_id)}
+            if _known(source, record_id)
+            else {}
+        )
         for r in target.revisions(record_id):
             where = f"{record_id} revision {r.revision}"
             if r.revision not in have:
                 raise InputError(
                     "DST", target.address, f"not empty: holds {where}, which {source.address} lacks"
                 )
-            if target._record_text(record_id, r.revision) != source._record_text(record_id, r.revision):
+            if target._record_text(record_id, r.revision) != source._record_text(
+                record_id, r.revision
+            ):
                 raise InputError("DST", target.address, f"holds another {where} than the source")
             theirs = {a.name: a.sha256 for a in source.artifacts(record_id, r.revision)}
             for a in target.artifacts(record_id, r.revision):
@@ -123,7 +129,9 @@ def export_artifacts(
                 path = out.joinpath(*a.relpath.split("/"))
                 if path.exists():
                     if sha256_hex(path.read_bytes()) != a.sha256:
-                        raise InputError(str(path), None, "exists with other content; not overwritten")
+                        raise InputError(
+                            str(path), None, "exists with other content; not overwritten"
+                        )
                 else:
                     atomic_write_once(path, data)
                     written.append(path)

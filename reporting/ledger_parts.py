@@ -11,9 +11,9 @@ default) is stored and read back without a schema change.
 from __future__ import annotations
 
 import hashlib
+import json
 import os
 import re
-import json
 import time
 from dataclasses import dataclass, field, fields
 from datetime import datetime, timezone

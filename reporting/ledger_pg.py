@@ -24,16 +24,21 @@ from typing import Any
 
 from orbitledger.kernel.errors import InputError
 
-from .ledger_base import LedgerBase, RevisionWriter, changes_of, status_of
+from .ledger_base import LedgerBase, RevisionWriter, status_of
 from .ledger_parts import (
     Artifact,
     RevisionInfo,
     SignOff,
-    sha256_hex,
-    signoff_details,
     utc_now,
 )
 from .ledger_schema import PG_MIGRATIONS, SCHEMA_VERSION, refuse_newer
+from .ledger_writers import (
+    PgWriter,
+    insert_artifacts,
+    insert_revision,
+    insert_signoff,
+    new_artifact,
+)
 from .record import canonical_dumps
 
 __all__ = ["CONNECT_TIMEOUT_S", "DUTIES", "PgLedger"]
@@ -45,7 +50,6 @@ DUTIES = {
     "checked": ("checker", "orbitledger_checker"),
     "approved": ("approver", "orbitledger_approver"),
 }
-_SEGMENT = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._ +-]{0,120}$")
 _MIGRATION_LOCK = 0x6F72_6269_746C  # any constant: serialises two first connections
 _PREFIX = re.compile(r"^(connection (failed|is bad): )?(connection to server .*? failed: )?")
 
@@ -230,10 +234,12 @@ class PgLedger(LedgerBase):
     # --- writing -------------------------------------------------------------------------
 
     def _begin(self, record_id: str) -> RevisionWriter:
-        return _PgWriter(self, record_id)
+        return PgWriter(self, record_id)
 
     def _locked(self, conn: Any, record_id: str) -> None:
-        conn.execute("SELECT pg_advisory_xact_lock(hashtextextended(%s, 0))", (f"orbitledger/{record_id}",))
+        conn.execute(
+            "SELECT pg_advisory_xact_lock(hashtextextended(%s, 0))", (f"orbitledger/{record_id}",)
+        )
 
     def _add_signoff_locked(
         self, record_id: str, revision: int, signoff: SignOff, files: dict[str, bytes]
@@ -253,10 +259,10 @@ class PgLedger(LedgerBase):
                     RevisionInfo(record_id, revision, "", "", "", "", status_of(roles)),
                     signoff.role,
                 )
-                _insert_signoff(conn, record_id, revision, signoff)
+                insert_signoff(conn, record_id, revision, signoff)
                 for name, data in files.items():
-                    artifacts.append(_artifact(record_id, revision, name, data, now))
-                _insert_artifacts(conn, [(a, files[a.name]) for a in artifacts])
+                    artifacts.append(new_artifact(record_id, revision, name, data, now))
+                insert_artifacts(conn, [(a, files[a.name]) for a in artifacts])
         except psycopg.Error as err:
             raise self.translate(err, duty=signoff.role) from None
         finally:
@@ -283,10 +289,12 @@ class PgLedger(LedgerBase):
                     (info.record_id, info.revision),
                 ).fetchone()
                 if not have:
-                    _insert_revision(conn, info, record_text, canonical_dumps(changes), committed_utc)
+                    insert_revision(
+                        conn, info, record_text, canonical_dumps(changes), committed_utc
+                    )
                 for s in signoffs:
-                    _insert_signoff(conn, info.record_id, info.revision, s)
-                _insert_artifacts(conn, artifacts)
+                    insert_signoff(conn, info.record_id, info.revision, s)
+                insert_artifacts(conn, artifacts)
         except psycopg.Error as err:
             raise self.translate(err) from None
         finally:
@@ -300,126 +308,8 @@ class PgLedger(LedgerBase):
             f"SELECT {self._RELPATH}, encode(pg_catalog.sha256(data), 'hex') = sha256,"
             " octet_length(data) = size FROM artifacts ORDER BY 1"
         )
-        return [f"{rel}: SHA-256 differs from the index" for rel, same, size in rows if not (same and size)]
-
-
-class _PgWriter(RevisionWriter):
-    """A revision being built into PostgreSQL: one transaction under the record id's lock."""
-
-    def __init__(self, ledger: PgLedger, record_id: str) -> None:
-        import psycopg
-
-        self.ledger, self.record_id = ledger, record_id
-        self._artifacts: list[tuple[Artifact, bytes]] = []
-        self.conn = ledger.connect(autocommit=False)
-        self._open = True
-        try:
-            allowed = self.conn.execute(
-                "SELECT has_table_privilege('orbitledger.revisions', 'INSERT')"
-                " AND has_table_privilege('orbitledger.artifacts', 'INSERT')"
-            ).fetchone()[0]
-            if not allowed:
-                raise ledger.duty_error("build")
-            ledger._locked(self.conn, record_id)
-            (last,) = self.conn.execute(
-                "SELECT COALESCE(MAX(revision), 0) FROM revisions WHERE record_id = %s",
-                (record_id,),
-            ).fetchone()
-        except psycopg.Error as err:
-            self._close()
-            raise ledger.translate(err, duty="build") from None
-        except BaseException:
-            self._close()
-            raise
-        self.revision = int(last) + 1
-        self.previous_record_sha256 = ledger.previous_record_sha256(record_id, self.revision)
-
-    def write(self, name: str, data: bytes) -> str:
-        segments = name.split("/")
-        if not all(_SEGMENT.match(s) and s not in (".", "..") for s in segments):
-            raise InputError("path", name, "not a safe name inside the ledger")
-        if any(a.name == name for a, _ in self._artifacts):
-            raise InputError(name, None, "artifact exists already; artifacts are write-once")
-        self._artifacts.append((_artifact(self.record_id, self.revision, name, data, utc_now()), data))
-        return self.ledger.location(self.record_id, self.revision, name)
-
-    def commit(self, record: dict[str, Any]) -> list[Artifact]:
-        import psycopg
-
-        if not self._open:
-            raise InputError("revision", self.revision, "this revision was given back already")
-        info = RevisionInfo(
-            self.record_id,
-            self.revision,
-            str(record.get("title", "")),
-            str((record.get("prepared") or {}).get("name", "")),
-            str(record.get("note", "")),
-            str(record.get("built_utc", utc_now())),
-            "draft",
-        )
-        try:
-            _insert_revision(
-                self.conn,
-                info,
-                canonical_dumps(record),
-                canonical_dumps(changes_of(record, self.revision)),
-                utc_now(),
-            )
-            _insert_artifacts(self.conn, self._artifacts)
-            self.conn.commit()
-        except psycopg.Error as err:
-            self.abandon()
-            raise self.ledger.translate(err, duty="build") from None
-        except BaseException:
-            self.abandon()
-            raise
-        self._close()
-        return [a for a, _ in self._artifacts]
-
-    def abandon(self) -> None:
-        if self._open:
-            try:
-                self.conn.rollback()
-            except Exception:  # the server rolls back a transaction whose connection closes
-                pass
-            self._close()
-
-    def _close(self) -> None:
-        self._open = False
-        self.conn.close()
-
-    def __del__(self) -> None:
-        if getattr(self, "_open", False):
-            self.abandon()
-
-
-def _artifact(record_id: str, revision: int, name: str, data: bytes, now: str) -> Artifact:
-    rel = f"records/{record_id}/r{revision:04d}/{name}"
-    return Artifact(record_id, revision, name, rel, sha256_hex(data), len(data), now)
-
-
-def _insert_revision(conn: Any, info: RevisionInfo, record_text: str, changes: str, when: str) -> None:
-    conn.execute(
-        "INSERT INTO revisions (record_id, revision, title, author, note, built_utc, record_json,"
-        " changes, committed_utc) VALUES (%s, %s, %s, %s, %s, %s, %s, %s, %s)",
-        (info.record_id, info.revision, info.title, info.author, info.note, info.built_utc,
-         record_text, changes, when),
-    )  # fmt: skip
-
-
-def _insert_signoff(conn: Any, record_id: str, revision: int, s: SignOff) -> None:
-    conn.execute(
-        "INSERT INTO signoffs (record_id, revision, role, name, time_utc, artifact_sha256, details)"
-        " VALUES (%s, %s, %s, %s, %s, %s, %s)",
-        (record_id, revision, s.role, s.name, s.time_utc, s.artifact_sha256, signoff_details(s)),
-    )
-
-
-def _insert_artifacts(conn: Any, artifacts: list[tuple[Artifact, bytes]]) -> None:
-    with conn.cursor() as cur:
-        cur.executemany(
-            "INSERT INTO artifacts (record_id, revision, name, sha256, size, created_utc, data)"
-            " VALUES (%s, %s, %s, %s, %s, %s, %s)",
-            [(a.record_id, a.revision, a.name, a.sha256, a.size, a.created_utc, data)
-             for a, data in artifacts],
-        )  # fmt: skip
+        return [
+            f"{rel}: SHA-256 differs from the index"
+            for rel, same, size in rows
+            if not (same and size)
+        ]

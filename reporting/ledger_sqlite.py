@@ -22,7 +22,6 @@ from __future__ import annotations
 
 import errno
 import os
-import re
 import shutil
 import sqlite3
 import tempfile
@@ -35,24 +34,22 @@ from typing import Any
 
 from orbitledger.kernel.errors import InputError
 
-from .ledger_base import LedgerBase, RevisionWriter, changes_of, status_of
+from .ledger_base import LedgerBase, RevisionWriter, status_of
 from .ledger_parts import (
     Artifact,
     RevisionInfo,
     SignOff,
     atomic_write_once,
     sha256_hex,
-    signoff_details,
     utc_now,
     validate_record_id,
 )
 from .ledger_schema import SCHEMA_VERSION, SQLITE_MIGRATIONS, refuse_newer
+from .ledger_writers import SEGMENT, FolderWriter, insert_artifacts, insert_revision, insert_signoff
 from .record import canonical_dumps
 
 __all__ = ["Ledger"]
 
-# One path segment inside the ledger: a safe file or folder name.
-_SEGMENT = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._ +-]{0,120}$")
 # How long a build or sign-off waits for another one's lock (a PDF build can hold it a while).
 _LOCK_WAIT_S = 600.0
 _DISK_FULL = {errno.ENOSPC, errno.EFBIG, errno.EDQUOT}
@@ -131,7 +128,9 @@ class Ledger(LedgerBase):
         """A user's one-line error for what the store said (disk full, read-only, busy...)."""
         text = str(err)
         if isinstance(err, OSError) and err.errno in _DISK_FULL:
-            return InputError("--ledger", self.address, f"disk full ({err.strerror}): nothing was recorded")
+            return InputError(
+                "--ledger", self.address, f"disk full ({err.strerror}): nothing was recorded"
+            )
         if isinstance(err, OSError) and err.errno in (errno.EROFS, errno.EACCES, errno.EPERM):
             return self._read_only_error()
         if "disk is full" in text or "disk I/O error" in text:
@@ -139,11 +138,15 @@ class Ledger(LedgerBase):
         if "readonly" in text or "read-only" in text:
             return self._read_only_error()
         if "locked" in text or "busy" in text:
-            return InputError("--ledger", self.address, f"busy for {_LOCK_WAIT_S:.0f} s ({text}); try again")
+            return InputError(
+                "--ledger", self.address, f"busy for {_LOCK_WAIT_S:.0f} s ({text}); try again"
+            )
         if "write-once" in text:
             return InputError("--ledger", self.address, text)
         if isinstance(err, sqlite3.DatabaseError) and not isinstance(err, sqlite3.IntegrityError):
-            return InputError("--ledger", str(self.index_path), f"not a readable ledger index: {text}")
+            return InputError(
+                "--ledger", str(self.index_path), f"not a readable ledger index: {text}"
+            )
         return err
 
     def _read_only_error(self) -> InputError:
@@ -182,7 +185,9 @@ class Ledger(LedgerBase):
             self._migrate(db, found)
             broken = db.execute("PRAGMA foreign_key_check").fetchall()
             if broken:
-                raise InputError("--ledger", self.address, f"migration left broken rows: {broken[:3]}")
+                raise InputError(
+                    "--ledger", self.address, f"migration left broken rows: {broken[:3]}"
+                )
 
     def _migrate(self, db: sqlite3.Connection, found: int, *, move_aside: bool = True) -> None:
         for version, script in SQLITE_MIGRATIONS:
@@ -224,7 +229,7 @@ class Ledger(LedgerBase):
         """``root/parts...``; InputError if a part is unsafe or the result escapes the ledger."""
         for part in parts:
             for segment in str(part).split("/"):
-                if not _SEGMENT.match(segment) or segment in (".", ".."):
+                if not SEGMENT.match(segment) or segment in (".", ".."):
                     raise InputError("path", str(part), "not a safe name inside the ledger")
         path = self.root.joinpath(*parts)
         resolved = path.resolve()
@@ -265,7 +270,7 @@ class Ledger(LedgerBase):
     # --- writing -------------------------------------------------------------------------
 
     def _begin(self, record_id: str) -> RevisionWriter:
-        return _FolderWriter(self, record_id)
+        return FolderWriter(self, record_id)
 
     def _add_signoff_locked(
         self, record_id: str, revision: int, signoff: SignOff, files: dict[str, bytes]
@@ -304,8 +309,8 @@ class Ledger(LedgerBase):
                             now,
                         )
                     )
-                _insert_signoff(db, record_id, revision, signoff)
-                _insert_artifacts(db, artifacts)
+                insert_signoff(db, record_id, revision, signoff)
+                insert_artifacts(db, [(a, None) for a in artifacts])
         except BaseException:
             for path in written:  # never indexed: they must not block a later sign-off
                 path.unlink(missing_ok=True)
@@ -330,14 +335,9 @@ class Ledger(LedgerBase):
                 ).fetchone()
                 if not have:
                     self._move_aside(info.record_id, info.revision)
-                    db.execute(
-                        "INSERT INTO revisions (record_id, revision, title, author, note, built_utc,"
-                        " record_json, changes, committed_utc) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
-                        (info.record_id, info.revision, info.title, info.author, info.note,
-                         info.built_utc, record_text, canonical_dumps(changes), committed_utc),
-                    )  # fmt: skip
+                    insert_revision(db, info, record_text, canonical_dumps(changes), committed_utc)
                 for s in signoffs:
-                    _insert_signoff(db, info.record_id, info.revision, s)
+                    insert_signoff(db, info.record_id, info.revision, s)
                 rows = []
                 for a, data in artifacts:
                     path = self.location(a.record_id, a.revision, a.name)
@@ -345,7 +345,7 @@ class Ledger(LedgerBase):
                     self._write_file(path, data)
                     written.append(path)
                     rows.append(replace(a, relpath=path.relative_to(self.root).as_posix()))
-                _insert_artifacts(db, rows)
+                insert_artifacts(db, [(a, None) for a in rows])
         except BaseException:
             for path in written:
                 path.unlink(missing_ok=True)
@@ -368,108 +368,6 @@ class Ledger(LedgerBase):
             elif sha256_hex(path.read_bytes()) != digest:
                 problems.append(f"{relpath}: SHA-256 differs from the index")
         return problems
-
-
-class _FolderWriter(RevisionWriter):
-    """A revision being built into a folder ledger, under SQLite's write lock."""
-
-    def __init__(self, ledger: Ledger, record_id: str) -> None:
-        self.ledger, self.record_id = ledger, record_id
-        self._written: list[Artifact] = []
-        self._open = True
-        try:
-            self.db = ledger._open(write=True)
-            self.db.execute("BEGIN IMMEDIATE")
-            (last,) = self.db.execute(
-                "SELECT COALESCE(MAX(revision), 0) FROM revisions WHERE record_id = ?", (record_id,)
-            ).fetchone()
-        except sqlite3.Error as err:
-            self._close()
-            raise ledger.translate(err) from None
-        self.revision = int(last) + 1
-        self.previous_record_sha256 = ledger.previous_record_sha256(record_id, self.revision)
-        ledger._move_aside(record_id, self.revision)  # left by a build that was killed
-
-    @property
-    def folder(self) -> Path:
-        return self.ledger._folder(self.record_id, self.revision)
-
-    def write(self, name: str, data: bytes) -> Path:
-        path = self.ledger.location(self.record_id, self.revision, name)
-        self.ledger._write_file(path, data)
-        rel = path.relative_to(self.ledger.root).as_posix()
-        self._written.append(
-            Artifact(self.record_id, self.revision, name, rel, sha256_hex(data), len(data), utc_now())
-        )
-        return path
-
-    def commit(self, record: dict[str, Any]) -> list[Artifact]:
-        if not self._open:
-            raise InputError("revision", self.revision, "this revision was given back already")
-        now = utc_now()
-        try:
-            self.db.execute(
-                "INSERT INTO revisions (record_id, revision, title, author, note, built_utc,"
-                " record_json, changes, committed_utc) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
-                (
-                    self.record_id,
-                    self.revision,
-                    str(record.get("title", "")),
-                    str((record.get("prepared") or {}).get("name", "")),
-                    str(record.get("note", "")),
-                    str(record.get("built_utc", now)),
-                    canonical_dumps(record),
-                    canonical_dumps(changes_of(record, self.revision)),
-                    now,
-                ),
-            )
-            _insert_artifacts(self.db, self._written)
-            self.db.execute("COMMIT")
-        except sqlite3.Error as err:
-            self.abandon()
-            raise self.ledger.translate(err) from None
-        except BaseException:
-            self.abandon()
-            raise
-        self._close()
-        return list(self._written)
-
-    def abandon(self) -> None:
-        if not self._open:
-            return
-        try:
-            if self.db.in_transaction:
-                self.db.execute("ROLLBACK")
-        except sqlite3.Error:
-            pass  # the connection closes next: SQLite rolls back what it did not commit
-        self.ledger._move_aside(self.record_id, self.revision)
-        self._close()
-
-    def _close(self) -> None:
-        self._open = False
-        db = getattr(self, "db", None)
-        if db is not None:
-            db.close()
-
-    def __del__(self) -> None:  # a reservation dropped without commit gives its number back
-        if getattr(self, "_open", False):
-            self.abandon()
-
-
-def _insert_signoff(db: Any, record_id: str, revision: int, s: SignOff) -> None:
-    db.execute(
-        "INSERT INTO signoffs (record_id, revision, role, name, time_utc, artifact_sha256, details)"
-        " VALUES (?, ?, ?, ?, ?, ?, ?)",
-        (record_id, revision, s.role, s.name, s.time_utc, s.artifact_sha256, signoff_details(s)),
-    )
-
-
-def _insert_artifacts(db: Any, artifacts: list[Artifact]) -> None:
-    db.executemany(
-        "INSERT INTO artifacts (record_id, revision, name, relpath, sha256, size, created_utc)"
-        " VALUES (?, ?, ?, ?, ?, ?, ?)",
-        [(a.record_id, a.revision, a.name, a.relpath, a.sha256, a.size, a.created_utc) for a in artifacts],
-    )
 
 
 def _statements(script: str) -> list[str]:

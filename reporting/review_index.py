@@ -54,7 +54,9 @@ def _write(path: Path, text: str) -> None:
     tmp.replace(path)
 
 
-def _copy_current(ledger: Any, out: Path, record_id: str, revision: int, state: dict[str, Any]) -> dict[str, str]:
+def _copy_current(
+    ledger: Any, out: Path, record_id: str, revision: int, state: dict[str, Any]
+) -> dict[str, str]:
     """Copy the current-state HTML and PDF of a revision into the site; their paths in it."""
     by_rel = {a.relpath: a for a in ledger.artifacts(record_id, revision)}
     copied = {}
@@ -65,7 +67,9 @@ def _copy_current(ledger: Any, out: Path, record_id: str, revision: int, state: 
         artifact = by_rel[rel]
         data = ledger.read_artifact(artifact)
         if sha256_hex(data) != artifact.sha256:
-            raise InputError(ledger.address, rel, "SHA-256 differs from the ledger's index; not copied")
+            raise InputError(
+                ledger.address, rel, "SHA-256 differs from the ledger's index; not copied"
+            )
         target = out / "artifacts" / rel
         if not (target.exists() and sha256_hex(target.read_bytes()) == artifact.sha256):
             target.parent.mkdir(parents=True, exist_ok=True)
@@ -102,7 +106,10 @@ def write_index(ledger: Any, out: Path) -> Site:
             if previous is not None:
                 name = f"r{row['revision']:04d}.html"
                 links = {"index": "../../index.html", "record": f"../../records/{record_id}.html"}
-                _write(out / "diffs" / record_id / name, diff_page(previous, record, ledger=ledger, links=links) )
+                _write(
+                    out / "diffs" / record_id / name,
+                    diff_page(previous, record, ledger=ledger, links=links),
+                )
                 row["diff"] = f"../diffs/{record_id}/{name}"
                 pages += 1
             previous = record

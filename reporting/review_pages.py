@@ -119,7 +119,12 @@ def _result_rows(old: list[dict[str, Any]], new: list[dict[str, Any]]) -> list[d
 
 
 def _result_tables(old: dict[str, Any], new: dict[str, Any]) -> list[dict[str, Any]]:
-    tables = [{"title": "Named results", "rows": _result_rows(old.get("results", []), new.get("results", []))}]
+    tables = [
+        {
+            "title": "Named results",
+            "rows": _result_rows(old.get("results", []), new.get("results", [])),
+        }
+    ]
     blocks_a = {blk["case"]: blk["results"] for blk in old.get("standard_results", [])}
     blocks_b = {blk["case"]: blk["results"] for blk in new.get("standard_results", [])}
     for case in list(dict.fromkeys([*blocks_b, *blocks_a])):
@@ -144,7 +149,9 @@ def _figure_rows(old: dict[str, Any], new: dict[str, Any]) -> list[dict[str, Any
                 "old": fa["sha256"][:16] + "..." if fa else "",
                 "new": fb["sha256"][:16] + "..." if fb else "",
                 "kind": kind,
-                "word": {"same": "same drawing data", "changed": "drawn from other data"}.get(kind, kind),
+                "word": {"same": "same drawing data", "changed": "drawn from other data"}.get(
+                    kind, kind
+                ),
                 "delta": (fb or fa or {}).get("caption", ""),
             }
         )
@@ -172,13 +179,19 @@ def findings(record: dict[str, Any]) -> list[dict[str, str]]:
 
 
 def diff_page(
-    old: dict[str, Any], new: dict[str, Any], *, ledger: Any = None, links: dict[str, str] | None = None
+    old: dict[str, Any],
+    new: dict[str, Any],
+    *,
+    ledger: Any = None,
+    links: dict[str, str] | None = None,
 ) -> str:
     """The side-by-side page of what changed from record ``old`` to record ``new``."""
     statuses = {}
     if ledger is not None:
         for rec in (old, new):
-            statuses[rec["revision"]] = ledger.latest_state(rec["record_id"], rec["revision"])["status"]
+            statuses[rec["revision"]] = ledger.latest_state(rec["record_id"], rec["revision"])[
+                "status"
+            ]
     changes = diff_records(old, new)
     sides = [
         {

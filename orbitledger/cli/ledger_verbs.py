@@ -14,7 +14,9 @@ from pathlib import Path
 
 __all__ = ["open_for_reading", "register", "register_history_diff", "verify_whole_ledger"]
 
-_LEDGER_HELP = "a ledger folder or postgresql://user@host/db (default ./ledger; env ORBITLEDGER_LEDGER)"
+_LEDGER_HELP = (
+    "a ledger folder or postgresql://user@host/db (default ./ledger; env ORBITLEDGER_LEDGER)"
+)
 
 
 def open_for_reading(args: argparse.Namespace, *, create: bool = False):
@@ -63,7 +65,9 @@ def _run_history(args: argparse.Namespace) -> int:
                 f" (artifact {s['artifact_sha256'][:16]}...)"
             )
         if r["status"] != "draft" and "html" in r["latest"]:
-            where = ledger.location(args.record_id, r["revision"], r["latest"]["html"].rsplit("/", 1)[-1])
+            where = ledger.location(
+                args.record_id, r["revision"], r["latest"]["html"].rsplit("/", 1)[-1]
+            )
             print(f"           current state ({r['status']}): {where}")
         for line in r["changes"]:
             print(f"           - {line}")
