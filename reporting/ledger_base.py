@@ -134,6 +134,9 @@ class LedgerBase(ABC):
     ) -> None:
         """``ledger copy``: add one revision whole (or its missing sign-offs) in one transaction."""
 
+    def check_writable(self) -> None:
+        """InputError now if this ledger cannot take a revision or a sign-off (read-only)."""
+
     # --- the build protocol --------------------------------------------------------------
 
     @contextmanager

@@ -91,7 +91,11 @@ def _follow(ledger: Any, record_id: str, report: LedgerReport) -> None:
     for n in numbers:
         record = ledger.record(record_id, n)
         data, where = _record_json_of(ledger, record_id, n)
-        own = json.loads(data) if data is not None else record
+        try:
+            own = json.loads(data) if data is not None else record
+        except ValueError:
+            problems.append(f"revision {n}: {where} is not JSON")
+            own = record
         if data is not None and own != record:
             problems.append(f"revision {n}: the index row differs from {where} (an edited row?)")
         if own.get("record_id") != record_id or own.get("revision") != n:
@@ -135,7 +139,8 @@ def _follow(ledger: Any, record_id: str, report: LedgerReport) -> None:
     )
     if unlinked:
         report.notes.append(
-            f"{record_id}: revision {', '.join(map(str, unlinked))} predate the hash chain "
+            f"{record_id}: revision{'s' if len(unlinked) > 1 else ''} "
+            f"{', '.join(map(str, unlinked))} {'predate' if len(unlinked) > 1 else 'predates'} the hash chain "
             "(checked by their SHA-256 in the index only)"
         )
     if numbers:

@@ -149,6 +149,10 @@ class Ledger(LedgerBase):
             )
         return err
 
+    def check_writable(self) -> None:
+        if self.readonly or self._memory is not None:
+            raise self._read_only_error()
+
     def _read_only_error(self) -> InputError:
         return InputError(
             "--ledger",
@@ -178,7 +182,10 @@ class Ledger(LedgerBase):
         if found == SCHEMA_VERSION:
             return
         if self.readonly:
-            self._memory = self._migrated_in_memory()
+            try:
+                self._memory = self._migrated_in_memory()
+            except sqlite3.Error as err:
+                raise self.translate(err) from None
             return
         with self._session(write=True, foreign_keys=False) as db:
             (found,) = db.execute("PRAGMA user_version").fetchone()  # again, under the lock

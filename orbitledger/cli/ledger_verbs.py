@@ -120,7 +120,7 @@ def _run_copy(args: argparse.Namespace) -> int:
 
     source = open_ledger(args.source, create=False)
     target = open_ledger(args.target, create=True)
-    done = copy_ledger(source, target, progress=sys.stderr.isatty())
+    done = copy_ledger(source, target)
     print(
         f"copied {done.revisions} revisions ({done.artifacts} artifacts, {done.bytes} bytes, "
         f"every SHA-256 checked) to {target.address}; {done.skipped} were there already"

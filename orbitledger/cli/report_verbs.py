@@ -35,9 +35,12 @@ def _ledger_dir(args: argparse.Namespace, default: Path) -> str | Path:
 
 
 def _open_ledger(args: argparse.Namespace):
+    """The ledger ``sign`` writes to (refused at once when it is read-only)."""
     from .ledger_verbs import open_for_reading
 
-    return open_for_reading(args)
+    ledger = open_for_reading(args)
+    ledger.check_writable()
+    return ledger
 
 
 def _formats(text: str) -> tuple[str, ...]:
