@@ -198,27 +198,48 @@ def assemble_record(
 
 
 def _history(ledger: Any, record: dict[str, Any], revision: int) -> list[dict[str, Any]]:
+    """The revision history of ``record``: read under the ledger's lock (the build holds it).
+
+    The previous revision's own history is taken over when it lists every earlier revision
+    (one record read, not all of them); otherwise it is rebuilt from every earlier record.
+    The sign-offs of every earlier revision are read afresh (they may have come after).
+    """
     from .signoff import signoff_summaries
 
-    earlier = [r for r in ledger.revisions(record["record_id"]) if r.revision < revision]
-    records = [ledger.record(record["record_id"], r.revision) for r in earlier] + [record]
-    history = []
-    for i, r in enumerate(records):
-        changes = ["first revision"] if i == 0 else summary_lines(diff_records(records[i - 1], r))
-        rev = revision if r is record else r["revision"]
-        history.append(
-            {
-                "revision": rev,
-                "built_utc": r["built_utc"],
-                "author": r["prepared"]["name"],
-                "note": r["note"],
-                "changes": changes,
-                "signoffs": []
-                if r is record
-                else signoff_summaries(ledger, record["record_id"], r["revision"]),
-            }
-        )
-    return history
+    def entry(r: dict[str, Any], rev: int, previous: dict[str, Any] | None) -> dict[str, Any]:
+        changes = summary_lines(diff_records(previous, r)) if previous else ["first revision"]
+        return {
+            "revision": rev,
+            "built_utc": r["built_utc"],
+            "author": r["prepared"]["name"],
+            "note": r["note"],
+            "changes": changes,
+            "signoffs": [],
+        }
+
+    earlier = [r.revision for r in ledger.revisions(record["record_id"]) if r.revision < revision]
+    if not earlier:
+        return [entry(record, revision, None)]
+    return [
+        {**e, "signoffs": signoff_summaries(ledger, record["record_id"], e["revision"])}
+        if e["revision"] != revision
+        else e
+        for e in _entries(ledger, record, revision, earlier, entry)
+    ]
+
+
+def _entries(ledger: Any, record: dict[str, Any], revision: int, earlier: list[int], entry: Any):
+    """History entries without sign-offs (see ``_history``)."""
+    previous = ledger.record(record["record_id"], earlier[-1])
+    kept = previous.get("history") or []
+    if [h.get("revision") for h in kept] == earlier:
+        return [*kept, entry(record, revision, previous)]
+    records = [ledger.record(record["record_id"], n) for n in earlier[:-1]] + [previous, record]
+    numbers = [*earlier, revision]
+    return [
+        entry(r, n, records[i - 1] if i else None)
+        for i, (r, n) in enumerate(zip(records, numbers, strict=True))
+    ]
 
 
 def _prepared_by(record: dict[str, Any], signer: Any) -> list[str]:
@@ -314,7 +335,7 @@ def record_run(
     PAdES signature.
     """
     from .findings import refuse_failing
-    from .ledger import Ledger
+    from .ledger import open_ledger
     from .render_html import render_html
 
     nb_path = Path(nb_path).resolve()
@@ -322,7 +343,9 @@ def record_run(
     if strict:
         refuse_failing(record["findings"])
     messages = _prepared_by(record, signer) if signer is not None else []
-    ledger = Ledger(ledger_dir if ledger_dir is not None else nb_path.parent / "ledger")
+    ledger = open_ledger(ledger_dir if ledger_dir is not None else nb_path.parent / "ledger")
+    # The ledger's lock is held from here to the commit: revision, chain link and history
+    # are read while no other build of this record id can commit.
     reservation = ledger.reserve(
         record["record_id"], title=record["title"], author=record["prepared"]["name"], note=note
     )
@@ -331,6 +354,7 @@ def record_run(
         outcome.messages.append("--accept-failing given, but every criterion holds")
     try:
         record["revision"] = reservation.revision
+        record["previous_record_sha256"] = reservation.writer.previous_record_sha256
         record["history"] = _history(ledger, record, reservation.revision)
         notebook_bytes = nbformat.writes(archived_notebook(executed)).encode("utf-8")
         if signer is not None:

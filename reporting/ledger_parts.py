@@ -1,80 +1,41 @@
-"""Parts of the ledger beside its index: write-once files, safe names, rows, liveness.
+"""Parts of the ledger shared by its back ends: write-once files, safe names, rows.
 
-``atomic_write_once`` writes a file the way every artifact is written (temporary file, fsync,
-hard link into place, read-only); ``validate_record_id`` keeps record ids to safe names; the
-frozen dataclasses are the rows ``Ledger`` returns; ``pending_is_stale`` tells a reservation
-whose build died from one still running.
+``atomic_write_once`` writes a file the way every artifact of a folder ledger is written
+(temporary file, fsync, hard link into place, read-only); ``validate_record_id`` keeps record
+ids to safe names; the frozen dataclasses are the rows a ledger returns; ``signoff_details`` /
+``signoff_from_row`` keep the fields of a ``SignOff`` beyond the four columns every ledger has
+(role, name, time, artifact hash) in one JSON column, so a field added to ``SignOff`` (with a
+default) is stored and read back without a schema change.
 """
 
 from __future__ import annotations
 
 import hashlib
+import json
 import os
 import re
-import socket
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, field, fields
 from datetime import datetime, timezone
 from pathlib import Path
+from typing import Any
 
 from orbitledger.kernel.errors import InputError
 
 __all__ = [
-    "INDEX_SCHEMA",
     "Artifact",
     "Reservation",
     "RevisionInfo",
     "SignOff",
     "atomic_write_once",
-    "pending_is_stale",
     "sha256_hex",
+    "signoff_details",
+    "signoff_from_row",
     "utc_now",
     "validate_record_id",
 ]
 
 _RECORD_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,79}$")
-
-INDEX_SCHEMA = """
-CREATE TABLE IF NOT EXISTS revisions (
-    record_id   TEXT NOT NULL,
-    revision    INTEGER NOT NULL CHECK (revision >= 1),
-    state       TEXT NOT NULL CHECK (state IN ('pending', 'committed')),
-    title       TEXT NOT NULL DEFAULT '',
-    author      TEXT NOT NULL DEFAULT '',
-    note        TEXT NOT NULL DEFAULT '',
-    built_utc   TEXT NOT NULL DEFAULT '',
-    status      TEXT NOT NULL DEFAULT 'draft' CHECK (status IN ('draft', 'checked', 'approved')),
-    record_json TEXT,
-    host        TEXT NOT NULL DEFAULT '',
-    pid         INTEGER NOT NULL DEFAULT 0,
-    reserved_utc TEXT NOT NULL DEFAULT '',
-    PRIMARY KEY (record_id, revision)
-);
-CREATE TABLE IF NOT EXISTS artifacts (
-    record_id   TEXT NOT NULL,
-    revision    INTEGER NOT NULL,
-    name        TEXT NOT NULL,
-    relpath     TEXT NOT NULL UNIQUE,
-    sha256      TEXT NOT NULL,
-    size        INTEGER NOT NULL,
-    created_utc TEXT NOT NULL,
-    PRIMARY KEY (record_id, revision, name),
-    FOREIGN KEY (record_id, revision) REFERENCES revisions (record_id, revision)
-);
-CREATE TABLE IF NOT EXISTS signoffs (
-    record_id   TEXT NOT NULL,
-    revision    INTEGER NOT NULL,
-    role        TEXT NOT NULL CHECK (role IN ('checked', 'approved')),
-    name        TEXT NOT NULL,
-    time_utc    TEXT NOT NULL,
-    artifact_sha256 TEXT NOT NULL,
-    PRIMARY KEY (record_id, revision, role),
-    FOREIGN KEY (record_id, revision) REFERENCES revisions (record_id, revision)
-);
-"""
-
-# A reservation from another host cannot be probed for liveness; after this long it is stale.
-_FOREIGN_PENDING_STALE_S = 6 * 3600.0
 
 
 def utc_now() -> str:
@@ -145,7 +106,8 @@ class Reservation:
 
     record_id: str
     revision: int
-    folder: Path
+    folder: Path | None  # None for a ledger in PostgreSQL
+    writer: Any = field(default=None, compare=False, repr=False)
 
 
 @dataclass(frozen=True)
@@ -167,6 +129,26 @@ class SignOff:
     artifact_sha256: str
 
 
+_SIGNOFF_COLUMNS = ("role", "name", "time_utc", "artifact_sha256")
+
+
+def signoff_details(signoff: SignOff) -> str:
+    """The fields of ``signoff`` beyond the four columns, as canonical JSON (``{}`` if none)."""
+    extra = {
+        f.name: getattr(signoff, f.name) for f in fields(signoff) if f.name not in _SIGNOFF_COLUMNS
+    }
+    return json.dumps(extra, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
+
+
+def signoff_from_row(
+    role: str, name: str, time_utc: str, artifact_sha256: str, details: str = "{}"
+) -> SignOff:
+    """A ``SignOff`` from its columns and details JSON; unknown detail keys are left out."""
+    known = {f.name for f in fields(SignOff)}
+    extra = {k: v for k, v in json.loads(details or "{}").items() if k in known}
+    return SignOff(role, name, time_utc, artifact_sha256, **extra)
+
+
 @dataclass(frozen=True)
 class RevisionInfo:
     record_id: str
@@ -176,32 +158,3 @@ class RevisionInfo:
     note: str
     built_utc: str
     status: str
-
-
-def pending_is_stale(host: str, pid: int, reserved_utc: str) -> bool:
-    if host == socket.gethostname():
-        if pid == os.getpid():
-            return False
-        try:
-            os.kill(int(pid), 0)
-        except ProcessLookupError:
-            return True
-        except PermissionError:
-            return False
-        return _is_zombie(int(pid))
-    try:
-        reserved = datetime.strptime(reserved_utc, "%Y-%m-%dT%H:%M:%SZ").replace(
-            tzinfo=timezone.utc
-        )
-    except ValueError:
-        return True
-    return (datetime.now(timezone.utc) - reserved).total_seconds() > _FOREIGN_PENDING_STALE_S
-
-
-def _is_zombie(pid: int) -> bool:
-    """A killed child that its parent has not reaped yet still answers ``kill(pid, 0)``."""
-    try:
-        stat = Path(f"/proc/{pid}/stat").read_text()
-    except OSError:
-        return False
-    return stat.rsplit(")", 1)[-1].split()[0] == "Z"

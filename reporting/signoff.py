@@ -58,7 +58,7 @@ def verified_artifacts(ledger: Ledger, record_id: str, revision: int) -> dict[st
     out = {}
     for a in ledger.artifacts(record_id, revision):
         try:
-            data = ledger.artifact_path(a).read_bytes()
+            data = ledger.read_artifact(a)
         except OSError as err:
             raise InputError(a.name, a.relpath, f"cannot be read ({err.strerror}); not signing") from None
         if sha256_hex(data) != a.sha256:
@@ -169,7 +169,7 @@ def sign(
             f"no record-{role}.pdf: a PDF carries sign-offs as signatures, and this one is unsigned"
         )
     ledger.add_signoff(record_id, revision, SignOff(role, entry["name"], now, html_sha), files, status=role)
-    paths = {n: ledger.path_inside("records", record_id, f"r{revision:04d}", n) for n in files}
+    paths = {n: ledger.location(record_id, revision, n) for n in files}
     return SignResult(
         record_id,
         revision,
@@ -202,7 +202,7 @@ def signoff_summaries(ledger: Ledger, record_id: str, revision: int) -> list[dic
     entries = None
     if artifact is not None:
         try:
-            data = ledger.artifact_path(artifact).read_bytes()
+            data = ledger.read_artifact(artifact)
         except OSError:
             data = b""
         if sha256_hex(data) == artifact.sha256:

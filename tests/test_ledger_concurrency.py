@@ -27,6 +27,18 @@ def _one_build(ledger_dir: str, n: int) -> int:
     return res.revision
 
 
+def _simulated_build(args: tuple[str, str, int]) -> int:
+    from pathlib import Path
+
+    from _record_study import simulated_run
+    from orbitledger.reporting.build import record_run
+
+    study, ledger_dir, n = args
+    executed, manifest = simulated_run(Path(study))
+    outcome = record_run(Path(study), executed, manifest, ledger_dir=ledger_dir, note=f"build {n}")
+    return outcome.revision
+
+
 def _consistent(ledger_dir) -> None:
     db = sqlite3.connect(os.path.join(ledger_dir, "index.sqlite"))
     # SQLite documentation: PRAGMA integrity_check returns the single row "ok" for a sound file.
@@ -41,6 +53,23 @@ def test_eight_concurrent_processes_get_eight_distinct_revisions(tmp_path):
         revisions = list(pool.map(_one_build, [ledger_dir] * 8, range(8)))
     assert sorted(revisions) == list(range(1, 9))
     assert [r.revision for r in Ledger(ledger_dir).revisions("KES2-ORB-001")] == list(range(1, 9))
+    _consistent(ledger_dir)
+
+
+@pytest.mark.slow
+def test_eight_concurrent_record_builds_each_list_every_earlier_revision(tmp_path):
+    study = write_study(tmp_path / "study")
+    ledger_dir = str(tmp_path / "ledger")
+    Ledger(ledger_dir)
+    with ProcessPoolExecutor(max_workers=8) as pool:
+        jobs = [(str(study), ledger_dir, n) for n in range(8)]
+        assert sorted(pool.map(_simulated_build, jobs)) == list(range(1, 9))
+    ledger = Ledger(ledger_dir)
+    for n in range(1, 9):  # issue 16: r0003 called itself the first revision, r0008 listed [1, 8]
+        record = ledger.record("KES2-ORB-001", n)
+        assert [h["revision"] for h in record["history"]] == list(range(1, n + 1))
+        previous = ledger.previous_record_sha256("KES2-ORB-001", n)
+        assert record["previous_record_sha256"] == previous
     _consistent(ledger_dir)
 
 
@@ -100,4 +129,7 @@ def test_eight_concurrent_cli_builds_of_one_study(tmp_path):
     assert sorted(r.note for r in ledger.revisions("KES2-ORB-001")) == [
         f"build {n}" for n in range(8)
     ]
+    for n in range(1, 9):  # the history in each record was read under the ledger's lock
+        history = ledger.record("KES2-ORB-001", n)["history"]
+        assert [h["revision"] for h in history] == list(range(1, n + 1))
     _consistent(ledger_dir)

@@ -25,6 +25,7 @@ VERB_MODULES = [
     "orbitledger.cli.trade_verbs",  # sweep, disperse
     "orbitledger.cli.report_verbs",  # build, history, diff, sign, verify, demo
     "orbitledger.cli.keys_verbs",  # keys new, keys new-ca
+    "orbitledger.cli.ledger_verbs",  # index, ledger copy | export | init
 ]
 
 

@@ -4,18 +4,19 @@
 --name`` without a key records an unsigned sign-off. ``verify --trust`` checks who signed.
 
 Default ledger: ``build`` uses ``ledger/`` beside the study notebook; ``history``, ``diff`` and
-``sign`` use ``./ledger`` in the current folder. ``--ledger DIR`` (or the environment variable
-``ORBITLEDGER_LEDGER``) chooses another one for every verb.
+``sign`` use ``./ledger`` in the current folder. ``--ledger ADDRESS`` (a folder or a
+``postgresql://`` address; or the environment variable ``ORBITLEDGER_LEDGER``) chooses another
+one for every verb. history and diff live in ``ledger_verbs``, beside index and ledger.
 """
 
 from __future__ import annotations
 
 import argparse
 import logging
-import os
 import sys
 from pathlib import Path
 
+from .ledger_verbs import register_history_diff
 from .main import UsageError
 
 __all__ = ["register"]
@@ -30,22 +31,19 @@ def _log_to_stderr() -> None:
         log.setLevel(logging.INFO)
 
 
-def _ledger_dir(args: argparse.Namespace, default: Path) -> Path:
-    if args.ledger:
-        return Path(args.ledger)
-    env = os.environ.get("ORBITLEDGER_LEDGER")
-    return Path(env) if env else default
+def _ledger_dir(args: argparse.Namespace, default: Path) -> str | Path:
+    from orbitledger.reporting.ledger import ledger_address
+
+    return ledger_address(args.ledger, default)
 
 
 def _open_ledger(args: argparse.Namespace):
-    from orbitledger.reporting.ledger import Ledger
+    """The ledger ``sign`` writes to (refused at once when it is read-only)."""
+    from .ledger_verbs import open_for_reading
 
-    folder = _ledger_dir(args, Path.cwd() / "ledger")
-    if not (folder / "index.sqlite").is_file():
-        raise UsageError(
-            f"--ledger {folder}: no ledger there (build a record first, or pass --ledger DIR)"
-        )
-    return Ledger(folder)
+    ledger = open_for_reading(args)
+    ledger.check_writable()
+    return ledger
 
 
 def _formats(text: str) -> tuple[str, ...]:
@@ -119,46 +117,6 @@ def _run_build(args: argparse.Namespace) -> int:
     return 0
 
 
-def _signoff_line(s: dict) -> str:
-    state = {True: "signed", False: "UNSIGNED"}.get(s["signed"], f"unknown: {s.get('problem')}")
-    org = f" ({s['org']})" if s.get("org") else ""
-    cert = f", certificate SHA-256 {s['cert_sha256'][:16]}..." if s.get("cert_sha256") else ""
-    return f"{s['role']} by {s['name']}{org} at {s['time_utc']}, {state}{cert}"
-
-
-def _run_history(args: argparse.Namespace) -> int:
-    from orbitledger.reporting.signoff import signoff_summaries
-
-    ledger = _open_ledger(args)
-    revisions = ledger.revisions(args.record_id)
-    if not revisions:
-        raise UsageError(
-            f"{args.record_id}: no revisions in {ledger.root} (known: {', '.join(ledger.record_ids()) or 'none'})"
-        )
-    record = ledger.record(args.record_id, revisions[-1].revision)
-    changes = {h["revision"]: h["changes"] for h in record.get("history", [])}
-    print(f"{args.record_id}: {revisions[-1].title}")
-    for r in revisions:
-        print(
-            f"  rev {r.revision:<3} {r.built_utc}  {r.status:<8}  {r.author or '-'}  {r.note or ''}".rstrip()
-        )
-        for s in signoff_summaries(ledger, args.record_id, r.revision):
-            print(f"           {_signoff_line(s)}")
-        for line in changes.get(r.revision, []):
-            print(f"           - {line}")
-    return 0
-
-
-def _run_diff(args: argparse.Namespace) -> int:
-    from orbitledger.reporting.diff import diff_records, format_side_by_side
-
-    ledger = _open_ledger(args)
-    a = ledger.record(args.record_id, args.rev_a)
-    b = ledger.record(args.record_id, args.rev_b)
-    sys.stdout.write(format_side_by_side(diff_records(a, b), args.rev_a, args.rev_b))
-    return 0
-
-
 def _run_sign(args: argparse.Namespace) -> int:
     from orbitledger.reporting.signoff import sign
 
@@ -189,6 +147,11 @@ def _run_sign(args: argparse.Namespace) -> int:
 
 def _run_verify(args: argparse.Namespace) -> int:
     from orbitledger.reporting.verify import verify_file
+
+    if args.record is None:  # verify --ledger ADDRESS: the whole ledger and its hash chain
+        from .ledger_verbs import verify_whole_ledger
+
+        return verify_whole_ledger(args)
 
     if args.execute:
         print(
@@ -224,15 +187,15 @@ def _revision(text: str) -> int:
 
 
 def register(subparsers) -> None:
-    ledger_help = "ledger folder (default: see 'orbitledger build --help'; env ORBITLEDGER_LEDGER)"
-
     p = subparsers.add_parser(
         "build", help="run a study notebook cleanly and record it in the ledger"
     )
     p.add_argument("study", metavar="STUDY.ipynb")
     p.add_argument("--to", default="html", help="html, pdf or html,pdf (default html)")
     p.add_argument(
-        "--ledger", metavar="DIR", help="ledger folder (default: ledger/ beside the notebook)"
+        "--ledger",
+        metavar="ADDRESS",
+        help="ledger folder or postgresql://user@host/db (default: ledger/ beside the notebook)",
     )
     p.add_argument("--note", default="", help="what changed in this revision")
     p.add_argument(
@@ -248,21 +211,7 @@ def register(subparsers) -> None:
     _add_key_options(p, "prepared")
     p.set_defaults(run=_run_build)
 
-    p = subparsers.add_parser("history", help="the revisions of a record, with what changed")
-    p.add_argument("record_id", metavar="RECORD_ID")
-    p.add_argument(
-        "--ledger",
-        metavar="DIR",
-        help=ledger_help.replace("see 'orbitledger build --help'", "./ledger"),
-    )
-    p.set_defaults(run=_run_history)
-
-    p = subparsers.add_parser("diff", help="inputs and results of two revisions side by side")
-    p.add_argument("record_id", metavar="RECORD_ID")
-    p.add_argument("rev_a", metavar="REV_A", type=_revision)
-    p.add_argument("rev_b", metavar="REV_B", type=_revision)
-    p.add_argument("--ledger", metavar="DIR", help="ledger folder (default ./ledger)")
-    p.set_defaults(run=_run_diff)
+    register_history_diff(subparsers)
 
     p = subparsers.add_parser("sign", help="sign off a revision: checked, then approved")
     p.add_argument("record_id", metavar="RECORD_ID")
@@ -271,13 +220,20 @@ def register(subparsers) -> None:
     _add_key_options(p, "this role")
     p.add_argument("--name", help="without --key: who signs (recorded as UNSIGNED)")
     p.add_argument("--note", default="", help="a remark kept with the sign-off")
-    p.add_argument("--ledger", metavar="DIR", help="ledger folder (default ./ledger)")
+    p.add_argument(
+        "--ledger", metavar="ADDRESS", help="ledger folder or postgresql:// (default ./ledger)"
+    )
     p.set_defaults(run=_run_sign)
 
     p = subparsers.add_parser(
         "verify", help="check a record from the file alone (exit 1 if anything differs)"
     )
-    p.add_argument("record", metavar="RECORD.html|RECORD.pdf|RECORD.json")
+    p.add_argument("record", metavar="RECORD.html|RECORD.pdf|RECORD.json", nargs="?")
+    p.add_argument(
+        "--ledger",
+        metavar="ADDRESS",
+        help="without RECORD: check a whole ledger (folder or postgresql://), its hash chain",
+    )
     p.add_argument(
         "--execute", action="store_true", help="also re-run the embedded notebook (runs its code)"
     )
