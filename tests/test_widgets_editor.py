@@ -17,6 +17,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 from orbitledger.widgets import CaseEditor
+from orbitledger.widgets.inputkeys import CACHE
 
 import orbitledger
 from orbitledger.case import CaseError, CaseFileChanged, load_case
@@ -94,11 +95,15 @@ def test_figures_update_in_place(case_path: Path) -> None:
 
 
 def test_budget_chart_updates_in_place_with_its_labels(case_path: Path) -> None:
-    editor = CaseEditor(orbitledger.open_case(case_path), window_results=False)
+    # The budget (its disposal search) is computed in the background, with the window results.
+    CACHE.clear()  # results are cached on their inputs: this test wants them computed
+    editor = CaseEditor(orbitledger.open_case(case_path))
+    assert editor._slow_job.wait(120.0) and editor._slow_job.state == "done"
     budget = next(f for f in editor._figures if f.name == "delta-v budget")
     model, source = budget.model, budget._sources["lines"]
     before = list(source.data["basis"])
     editor.apply({"orbit.e": 0.004})  # a lower perigee: more drag make-up, another basis text
+    assert editor._slow_job.wait(120.0) and editor._slow_job.state == "done"
     assert budget.model is model  # no rebuild: every drawn column comes from budget_data
     cols = source.data
     assert list(cols["basis"]) != before

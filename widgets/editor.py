@@ -18,6 +18,7 @@ background with a progress bar and a cancel button.
 from __future__ import annotations
 
 import html
+import threading
 import time
 from collections.abc import Callable, Mapping
 from datetime import datetime
@@ -26,12 +27,14 @@ from typing import Any
 from orbitledger import analysis
 from orbitledger.case import CaseError, CaseFileChanged
 
+from . import pipeline
 from .background import Progress
 from .casefigures import prime
 from .debounce import Debouncer
 from .fields import Field
 from .form import EditorForm
 from .history import History
+from .inputkeys import FIGURE_NEEDS, figure_key
 from .livefigures import load_bokehjs
 from .tables import ListTable
 
@@ -98,6 +101,8 @@ class CaseEditor(EditorForm):
         self._pending: Any = None  # a valid case waiting on the changed-on-disk question
         self._results: dict[str, Any] = {}
         self._slow_results: dict[str, Any] = {}
+        self._job_needed = False
+        self._panel_lock = threading.Lock()
         self.timings: dict[str, float] = {}
         self.add_class("ol-editor")
         self.layout.width = "100%"
@@ -200,24 +205,37 @@ class CaseEditor(EditorForm):
         self._recompute()
 
     def _recompute(self) -> None:
+        """The edit path's computations: the fast ones now, the rest in the background (see
+        ``pipeline``); each is cached on its inputs, so only what the edit changed is done."""
         t0 = time.perf_counter()
+        case = self._case
         try:
-            self._results = analysis.case_results(self._case, groups=analysis.FAST_GROUPS)
+            self._results = pipeline.fast_results(case)
         except ValueError as exc:  # a valid case the kernel cannot summarise (shown, not lost)
             self._results = {}
             self.results_panel.show_error(f"results unavailable: {exc}")
+        later = pipeline.background_needs(case)
+        now = [n for n in ("orbit", "window", "budget") if n not in later]
         if self._figures:
-            prime(self._case)  # the figures' kernel work: ephemeris, ground track
+            prime(case, now)  # the figures' kernel work: ephemeris, ground track
         t1 = time.perf_counter()
-        self._slow_results = {}
-        slow = [g for g in analysis.ALL_GROUPS if g not in analysis.FAST_GROUPS]
-        pending = "window results on the way\u2026" if slow and self.window_results else ""
-        self.results_panel.show(self._results, pending)
-        self._warnings.value = html.escape(" ".join(_case_warnings(self._case)))
+        self._slow_results, failed, missing = pipeline.cached_background_results(case)
+        waiting = [
+            f
+            for f in self._figures
+            if FIGURE_NEEDS.get(f.name, "orbit") in later
+            and not pipeline.kernel_ready(case, FIGURE_NEEDS.get(f.name, "orbit"))
+        ]
+        self._job_needed = bool(missing or waiting)
+        self._show_results(failed)
+        self._warnings.value = html.escape(" ".join(_case_warnings(case)))
         t2 = time.perf_counter()
         data = send = 0.0
         for figure in self._figures:
-            figure.update(self._case)
+            if figure in waiting:
+                figure.mark_waiting()
+                continue
+            figure.update(case, figure_key(figure.name, case))
             data += figure.timings["build_s"]
             send += figure.timings["sync_s"]
         self.timings.update(
@@ -225,35 +243,84 @@ class CaseEditor(EditorForm):
             figure_data_s=data,
             widget_s=self.timings.get("fields_s", 0.0) + (t2 - t1) + send,
         )
-        if slow and self.window_results:
+        if not self._job_needed:
+            self._slow_job.cancel(quiet=True)  # a run for an older case is no longer wanted
+            self._slow_job.show_idle(f"{len(self._slow_results)} window results (cached)")
+        elif self.window_results:
             self.run_window_results()
+        else:
+            self._slow_job.show_idle("not computed yet: press Run")
+
+    def _show_results(self, failed: list[str] = ()) -> None:
+        job = self._slow_job
+        if not self._job_needed:
+            note = ""
+        elif job.state == "running":
+            note = "window results on the way\u2026"
+        elif job.state == "cancelled":
+            note = "window results cancelled: press \u201cRun: window results\u201d to compute them"
+        else:
+            note = "window results not computed yet: press \u201cRun: window results\u201d"
+        with self._panel_lock:
+            self.results_panel.show(self.results, " ".join([*failed, note]).strip())
 
     def run_window_results(self) -> None:
-        """Compute the results over the analysis window (eclipses, contacts, lifetime...) in
-        the background; they join the results panel when done. Each edit does this itself
-        unless the editor was made with ``window_results=False``."""
+        """Compute the results over the analysis window (eclipses, contacts, lifetime, the
+        budget) and the figures that wait for them, in the background; they join the panel
+        when done. Each edit does this itself unless the editor was made with
+        ``window_results=False``; after Cancel, an edit or this method runs them again."""
         self._slow_job.start()
+        self._show_results()
 
     def _window_job(self, progress: Progress) -> dict[str, Any]:
-        slow = [g for g in analysis.ALL_GROUPS if g not in analysis.FAST_GROUPS]
-        return self._slow_groups(slow, progress, self._history_marker())
+        return self._slow_groups(list(pipeline.BACKGROUND_GROUPS), progress, self._generation)
 
     def _history_marker(self) -> int:
         return self._generation
 
     def _slow_groups(self, groups: list[str], progress: Progress, marker: int) -> dict[str, Any]:
         case, out, failed = self._case, {}, []
+        later = pipeline.background_needs(case)
+        steps = len(groups) + 1
+        t0 = time.perf_counter()
+
+        def current() -> bool:
+            return self._history_marker() == marker
+
+        def draw(need: str) -> None:
+            for figure in self._figures:
+                if FIGURE_NEEDS.get(figure.name, "orbit") == need and need in later and current():
+                    figure.update(case, figure_key(figure.name, case))
+
+        if "window" in later:  # the numerical propagation, with its own progress
+            progress(0.0, "propagating over the window\u2026")
+            prime(case, ["window"], lambda f: progress(f / steps, "propagating\u2026"))
+            draw("window")
         for k, group in enumerate(groups):
-            progress(k / len(groups), f"{group}\u2026")
+            progress((k + 1) / steps, f"{group}\u2026")
             try:
-                out.update(analysis.case_results(case, groups=[group]))
+                out.update(pipeline.slow_group(case, group))
             except ValueError as exc:  # one group that does not apply does not stop the rest
                 failed.append(f"{group}: {exc}")
+            if group == "budget":
+                prime(case, ["budget"])
+                draw("budget")
+                self.timings["budget_s"] = time.perf_counter() - t0
+            if current():
+                self._slow_results = dict(out)
+                self._show_results(failed)
         progress(1.0)
-        if self._history_marker() == marker:
-            self._slow_results = out
-            self.results_panel.show(self.results, " ".join(failed))
+        self.timings["background_s"] = time.perf_counter() - t0
+        if current():
+            self._job_needed = False
+            self._show_results(failed)
         return out
+
+    def _window_job_done(self, job: Any) -> None:
+        if job.state in ("cancelled", "failed"):
+            for figure in self._figures:
+                figure.mark_waiting(done=False)
+            self._show_results()
 
     # -- typed edits ------------------------------------------------------------------------
     def _field_edited(self, field: Field) -> None:

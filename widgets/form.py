@@ -14,8 +14,10 @@ from typing import Any
 
 import ipywidgets as w
 
+from . import pipeline
 from .background import BackgroundJob
 from .fields import BoolField, ChoiceField, Field, NumberField, TextField, VectorField
+from .inputkeys import FIGURE_NEEDS
 from .livefigures import LiveFigure
 from .results import ResultsPanel
 from .sections import SECTIONS, field_specs
@@ -115,14 +117,23 @@ class EditorForm(w.VBox):
         self.stations = StationTable([], self._propose_list)
         self.burns = BurnTable([], self._propose_list)
         self._slow_job = BackgroundJob(
-            "window results", self._window_job, describe=lambda r: f"{len(r)} window results"
+            "window results",
+            self._window_job,
+            describe=lambda r: f"{len(r)} window results",
+            on_done=self._window_job_done,
+            auto=self.window_results,
         )
-        if self.window_results:
-            self._slow_job.run_button.layout.display = "none"
-        else:
-            self._slow_job.label.layout.display = "none"
+        later = pipeline.background_needs(self._case)
         self._figures = [
-            LiveFigure(name, build, self._case, data) for name, build, data in figure_builders
+            LiveFigure(
+                name,
+                build,
+                self._case,
+                data,
+                defer=FIGURE_NEEDS.get(name, "orbit") in later
+                and not pipeline.kernel_ready(self._case, FIGURE_NEEDS.get(name, "orbit")),
+            )
+            for name, build, data in figure_builders
         ]
         figure_box = w.HBox([f.widget for f in self._figures])
         figure_box.add_class("ol-figures")
