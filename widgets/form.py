@@ -19,10 +19,11 @@ from .background import BackgroundJob
 from .fields import BoolField, ChoiceField, Field, NumberField, TextField, VectorField
 from .inputkeys import FIGURE_NEEDS
 from .livefigures import LiveFigure
+from .plan_tables import AllowanceTable, BurnTable
 from .results import ResultsPanel
 from .sections import SECTIONS, field_specs
 from .style import style_sheet
-from .tables import BurnTable, StationTable
+from .tables import StationTable
 
 __all__ = ["EditorForm"]
 
@@ -114,8 +115,10 @@ class EditorForm(w.VBox):
         self.results_panel = ResultsPanel()
         self._warnings = w.HTML("")
         self._warnings.add_class("ol-warn")
-        self.stations = StationTable([], self._propose_list)
-        self.burns = BurnTable([], self._propose_list)
+        tables = (StationTable, BurnTable, AllowanceTable)
+        self.stations, self.burns, self.allowances = (
+            t([], self._propose_list, self._debounce.trigger, self._debounce.flush) for t in tables
+        )
         self._slow_job = BackgroundJob(
             "window results",
             self._window_job,
@@ -161,6 +164,7 @@ class EditorForm(w.VBox):
             grid,
             self.stations.widget,
             self.burns.widget,
+            self.allowances.widget,
             figure_box,
         ]
 
@@ -181,11 +185,15 @@ class EditorForm(w.VBox):
         for key, _title, _paths in SECTIONS:
             self._refresh_section(key, clear_errors)
         data = case.model_dump(mode="json")
-        for table in (self.stations, self.burns):
-            present = table.path in data
+        for table in (self.stations, self.burns, self.allowances):
+            *parents, last = table.path.split(".")
+            parent: Any = data
+            for part in parents:  # budget.allowances: shown when the case has a budget
+                parent = parent.get(part) if isinstance(parent, dict) else None
+            present = isinstance(parent, dict) and last in parent
             table.widget.layout.display = "flex" if present else "none"
             if present:
-                table.sync(data[table.path] or [], typed_here=source is table)
+                table.sync(parent[last] or [], typed_here=source is table)
 
     def _refresh_section(self, key: str, clear_errors: bool) -> None:
         specs = field_specs(self._case, key)
@@ -224,5 +232,6 @@ class EditorForm(w.VBox):
             field.input.placeholder = "the case epoch"
         field._section = section  # type: ignore[attr-defined]
         field.on_edit(lambda f: self._debounce.trigger(f.path, lambda: self._field_edited(f)))
+        field.on_commit(lambda f: self._debounce.flush(f.path))  # Enter applies at once
         self._fields[spec.path] = field
         return field

@@ -26,7 +26,15 @@ from typing import Any
 
 from orbitledger.case.canonical import canonical_json
 
-__all__ = ["CACHE", "FIGURE_INPUTS", "FIGURE_NEEDS", "IGNORED", "figure_key", "InputCache", "inputs_key"]
+__all__ = [
+    "CACHE",
+    "FIGURE_INPUTS",
+    "FIGURE_NEEDS",
+    "IGNORED",
+    "figure_key",
+    "InputCache",
+    "inputs_key",
+]
 
 # Sections of the case's data that a computation does not read (see the module docstring).
 IGNORED: dict[str, frozenset[str]] = {
