@@ -21,7 +21,6 @@ import html
 import threading
 import time
 from collections.abc import Callable, Mapping
-from datetime import datetime
 from typing import Any
 
 from orbitledger import analysis
@@ -33,6 +32,7 @@ from .casefigures import prime
 from .debounce import Debouncer
 from .fields import Field
 from .form import EditorForm
+from .formview import view_case
 from .history import History
 from .inputkeys import FIGURE_NEEDS, figure_key
 from .livefigures import load_bokehjs
@@ -99,6 +99,7 @@ class CaseEditor(EditorForm):
         self.window_results = window_results
         self._generation = 0
         self._pending: Any = None  # a valid case waiting on the changed-on-disk question
+        self._view_form: str | None = None  # the orbit form shown, when not the case's own
         self._results: dict[str, Any] = {}
         self._slow_results: dict[str, Any] = {}
         self._job_needed = False
@@ -108,6 +109,7 @@ class CaseEditor(EditorForm):
         self.layout.width = "100%"
         self._build(figures if figures is not None else editor_figures(theme))
         self._refresh_fields(clear_errors=True)
+        self._status("opened" if self.case_file is not None else "not bound to a file")
         self._recompute()
 
     # -- public API ---------------------------------------------------------------------------
@@ -133,11 +135,30 @@ class CaseEditor(EditorForm):
         when the file changed on disk since it was loaded: the editor then shows its question
         (reload from disk / overwrite) and keeps the edit pending until it is answered.
         """
-        return self._commit(self._case.with_changes(dict(changes)))
+        changes = dict(changes)
+        return self._commit(self._edit_base(changes).with_changes(changes))
 
     def switch_form(self, form: str) -> Any:
-        """Show the orbit in ``form`` ("classical", "apsides", "cartesian"), converted exactly."""
-        return self._commit(self._case.with_orbit_form(form))
+        """Show the orbit in ``form`` ("classical", "apsides", "cartesian"): a view, not an
+        edit. The case, its file and its fingerprint stay as they are; the fields show the
+        orbit converted, rounded where the conversion's float noise lies (``formview``). An
+        edit of an orbit field then saves the case in that form. Returns the case as shown
+        (validated, not saved); raises ``CaseError`` where the form does not apply."""
+        shown = view_case(self._case, form)
+        self._view_form = None if form == self._case.orbit.form else form
+        self._refresh_fields(clear_errors=True)
+        if self._view_form is None:
+            self._status("orbit shown as given in the case file")
+        else:
+            self._status(f"orbit shown as {form} (a view: saved when you edit a value of it)")
+        return shown
+
+    def _edit_base(self, changes: Mapping[str, Any]) -> Any:
+        """The case an edit applies to: the orbit's view in the form shown when the edit
+        touches the orbit, else the case."""
+        if self._view_form is not None and any(str(p).startswith("orbit.") for p in changes):
+            return self._orbit_case()
+        return self._case
 
     def undo(self) -> Any:
         """Return to the case before the last edit (and save it); returns the case."""
@@ -192,8 +213,9 @@ class CaseEditor(EditorForm):
             move()
         else:
             self._history.push(new_case)
-        self._set_case(new_case, clear_errors=move is not None or force, source=source)
+        self._case = new_case  # the status line names the saved case at once, then results
         self._status("saved" if self.case_file is not None else "applied (no case file)")
+        self._set_case(new_case, clear_errors=move is not None or force, source=source)
         return new_case
 
     def _set_case(self, case: Any, *, clear_errors: bool, source: Any = None) -> None:
@@ -250,19 +272,6 @@ class CaseEditor(EditorForm):
             self.run_window_results()
         else:
             self._slow_job.show_idle("not computed yet: press Run")
-
-    def _show_results(self, failed: list[str] = ()) -> None:
-        job = self._slow_job
-        if not self._job_needed:
-            note = ""
-        elif job.state == "running":
-            note = "window results on the way\u2026"
-        elif job.state == "cancelled":
-            note = "window results cancelled: press \u201cRun: window results\u201d to compute them"
-        else:
-            note = "window results not computed yet: press \u201cRun: window results\u201d"
-        with self._panel_lock:
-            self.results_panel.show(self.results, " ".join([*failed, note]).strip())
 
     def run_window_results(self) -> None:
         """Compute the results over the analysis window (eclipses, contacts, lifetime, the
@@ -330,7 +339,7 @@ class CaseEditor(EditorForm):
             field.show_error(getattr(exc, "reason", str(exc)))
             return
         try:
-            new_case = self._case.with_changes({field.path: value})
+            new_case = self._edit_base({field.path: value}).with_changes({field.path: value})
         except CaseError as exc:
             self._show_refusal(exc, field)
             return
@@ -346,15 +355,14 @@ class CaseEditor(EditorForm):
         self._guarded(lambda: self._commit(new_case, source=table))
 
     def _form_switched(self, change: dict[str, Any]) -> None:
-        if getattr(self, "_quiet_form", False) or change["new"] == self._case.orbit.form:
+        if getattr(self, "_quiet_form", False):
             return
         try:
             self.switch_form(change["new"])
-        except (CaseError, CaseFileChanged) as exc:
-            if isinstance(exc, CaseError):
-                self._status(_error_text(exc), error=True)
+        except CaseError as exc:
+            self._status(_error_text(exc), error=True)
             self._quiet_form = True
-            self.form_choice.value = self._case.orbit.form
+            self.form_choice.value = self._orbit_case().orbit.form
             self._quiet_form = False
 
     def _show_refusal(self, exc: Exception, field: Field) -> None:
@@ -373,13 +381,3 @@ class CaseEditor(EditorForm):
             pass  # the question is on screen
         except (CaseError, IndexError, OSError) as exc:
             self._status(_error_text(exc), error=True)
-
-    def _status(self, text: str, *, error: bool = False) -> None:
-        stamp = datetime.now().strftime("%H:%M:%S")
-        fingerprint = getattr(self._case, "fingerprint", "")
-        short = f" \u00b7 case {fingerprint[:12]}" if fingerprint else ""
-        self._state.value = html.escape(f"{text} {stamp}{short}")
-        if error:
-            self._state.add_class("ol-status-error")
-        else:
-            self._state.remove_class("ol-status-error")
