@@ -71,18 +71,18 @@ def _budget_group(case: Any) -> dict[str, Any]:
     return {r.name: r for r in rows}
 
 
-def _window_group(fn: Callable[..., list]) -> Callable[[Any], dict[str, Any]]:
+def _window_group(name: str) -> Callable[[Any], dict[str, Any]]:
     def compute(case: Any) -> dict[str, Any]:
         traj = case_trajectory(case) if _closed(case) else None
-        return {r.name: r for r in fn(case, trajectory=traj)}
+        return {r.name: r for r in getattr(window_groups, name)(case, trajectory=traj)}
 
     return compute
 
 
 _COMPUTE: dict[str, Callable[[Any], dict[str, Any]]] = {
     "budget": _budget_group,
-    "eclipses": _window_group(window_groups.eclipse_results),
-    "contacts": _window_group(window_groups.contact_results),
+    "eclipses": _window_group("eclipse_results"),
+    "contacts": _window_group("contact_results"),
     "lifetime": lambda c: analysis.case_results(c, groups=["lifetime"]),
 }
 
