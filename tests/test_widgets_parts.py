@@ -6,7 +6,6 @@ These are checks of our own mechanics (no physics); each states the behaviour it
 
 from __future__ import annotations
 
-import asyncio
 import threading
 import time
 
@@ -71,19 +70,7 @@ def test_history_drops_the_undone_branch() -> None:
     assert not h.can_redo and h.current == "d" and len(h) == 2
 
 
-def test_debouncer_runs_once_after_the_last_keystroke() -> None:
-    calls: list[str] = []
-
-    async def typing() -> None:
-        d = Debouncer(0.05)
-        for text in ("0", "0.", "0.0", "0.02"):
-            d.trigger("orbit.e", lambda t=text: calls.append(t))
-            await asyncio.sleep(0.01)
-        assert calls == [] and d.pending == 1
-        await asyncio.sleep(0.1)
-
-    asyncio.run(typing())
-    assert calls == ["0.02"]
+# The debounce itself is tested on a fake clock in test_widgets_edit_path.py.
 
 
 def test_debouncer_without_a_loop_runs_at_once() -> None:

@@ -57,8 +57,10 @@ class BackgroundJob:
         describe: Callable[[Any], str] = str,
         on_done: Callable[[BackgroundJob], None] | None = None,
         min_interval_s: float = 0.1,
+        auto: bool = False,
     ) -> None:
         self.title = title
+        self.auto = auto  # started by the editor itself: the Run button shows only when needed
         self.fn = fn
         self.describe = describe
         self.on_done = on_done
@@ -92,6 +94,24 @@ class BackgroundJob:
             [self.label, self.run_button, self.bar, self.cancel_button, self.status]
         )
         self.widget.add_class("ol-job")
+        self._show_run_button()
+
+    def _show_run_button(self) -> None:
+        """Run shows whenever running again is the way on: not while a run goes, and for a job
+        the editor starts itself only after a cancel or a failure."""
+        wanted = self.state != "running" and (
+            not self.auto or self.state in ("cancelled", "failed")
+        )
+        self.run_button.layout.display = None if wanted else "none"
+
+    def show_idle(self, text: str) -> None:
+        """No run is needed (what the job computes is there already): say so in the status."""
+        if self.running:
+            return
+        self.state = "idle"
+        self.bar.layout.visibility = "hidden"
+        self.status.value = _escape(text)
+        self._show_run_button()
 
     @property
     def running(self) -> bool:
@@ -113,17 +133,26 @@ class BackgroundJob:
         self.bar.layout.visibility = "visible"
         self.cancel_button.disabled = False
         self.status.value = "starting\u2026"
+        self._show_run_button()
         self._thread = threading.Thread(
             target=self._run, args=(self.fn, cancel, finished), name=f"orbitledger {self.title}"
         )
         self._thread.daemon = True
         self._thread.start()
 
-    def cancel(self) -> None:
-        """Ask the job to stop at its next progress report."""
-        if self.running:
-            self._cancel.set()
-            self.status.value = "cancelling\u2026"
+    def cancel(self, quiet: bool = False) -> None:
+        """Stop the job: at once on screen (state "cancelled", the Run button back), and in
+        its thread at the next progress report, its outcome dropped. ``quiet``: no trace on
+        screen (the run is superseded by cached results)."""
+        if not self.running:
+            return
+        self._cancel.set()
+        self._cancel, self._finished = threading.Event(), threading.Event()
+        self._finished.set()  # the stopped thread no longer counts as the current run
+        if quiet:
+            self.state = "idle"
+            return
+        self._finish("cancelled", None)
 
     def wait(self, timeout: float | None = None) -> bool:
         """Block until the current run has finished; True if it did within ``timeout`` s."""
@@ -158,7 +187,10 @@ class BackgroundJob:
         if not self._current(cancel):  # superseded by a newer run: drop this outcome
             finished.set()
             return
-        state, value = outcome
+        self._finish(*outcome)
+        finished.set()
+
+    def _finish(self, state: str, value: Any) -> None:
         if state == "done":
             self.state, self.result = "done", value
             self.bar.value = 1.0
@@ -173,7 +205,7 @@ class BackgroundJob:
             self.status.value = "cancelled"
             self.bar.bar_style = "warning"
         self.cancel_button.disabled = True
-        finished.set()
+        self._show_run_button()
         if self.on_done is not None:
             self.on_done(self)
 

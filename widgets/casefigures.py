@@ -29,8 +29,12 @@ from orbitledger.kernel.groundtrack import ground_track
 from orbitledger.kernel.propagation import Trajectory
 from orbitledger.kernel.sun import sun_position_gcrf_km
 
+from .inputkeys import CACHE, FIGURE_NEEDS
+
 __all__ = [
     "CASE_FIGURES",
+    "FIGURE_NEEDS",
+    "budget_report",
     "CaseFigure",
     "case_trajectory",
     "case_figures",
@@ -40,31 +44,27 @@ __all__ = [
 ]
 
 
-_cache: dict[tuple[int, str], tuple[Any, Any]] = {}
+# The kernel work of each figure is cached on the case's physical inputs (see inputkeys):
+# the name of the item, and the inputs it depends on.
+_DEPENDS = {
+    "trajectory": "trajectory",
+    "window-inputs": "trajectory",
+    "track": "trajectory",
+    "window-states": "trajectory",
+    "one-orbit": "one-orbit",
+    "budget": "budget",
+}
 
 
 def _cached(case: Any, key: str, fn: Callable[[Any], Any]) -> Any:
-    """``fn(case)``, computed once per case and key; the last few cases are kept."""
-    slot = (id(case), key)
-    hit = _cache.get(slot)
-    if hit is not None and hit[0] is case:
-        return hit[1]
-    value = fn(case)
-    _cache[slot] = (case, value)  # the case is kept so that its id is not reused meanwhile
-    cases = list(dict.fromkeys(k[0] for k in _cache))
-    for old in cases[:-_CASES_KEPT]:
-        for k in [k for k in _cache if k[0] == old]:
-            del _cache[k]
-    return value
+    """``fn(case)``, computed once per item ``key`` and the physical inputs it reads."""
+    return CACHE.get(case, _DEPENDS[key], fn, name=key)
 
 
-_CASES_KEPT = 4
-
-
-def case_trajectory(case: Any) -> Any:
+def case_trajectory(case: Any, progress: Callable[[float], None] | None = None) -> Any:
     """The kernel ``Trajectory`` of the case over its window (``analysis.case_trajectory``,
     the one translation of a case into kernel inputs), cached per case."""
-    return _cached(case, "trajectory", analysis_trajectory)
+    return _cached(case, "trajectory", lambda c: analysis_trajectory(c, progress=progress))
 
 
 def window_offsets_s(case: Any) -> np.ndarray:
@@ -185,10 +185,17 @@ def _one_orbit(case: Any) -> tuple[np.ndarray, np.ndarray]:
     return _cached(case, "one-orbit", compute)
 
 
-def prime(case: Any) -> None:
+def prime(case: Any, needs: Sequence[str] = ("orbit", "window", "budget"), progress=None) -> None:
     """Compute (and cache) the kernel results the figures of ``case`` draw from, so that the
-    kernel's share of an edit can be timed apart from building the figure data."""
-    for compute in (case_track, _one_orbit, _window_states, _budget):
+    kernel's share of an edit can be timed apart from building the figure data. ``needs``
+    picks what (see ``FIGURE_NEEDS``); ``progress(fraction)`` is passed to a propagation."""
+    if "window" in needs:
+        try:
+            case_trajectory(case, progress)
+        except ValueError:
+            pass
+    chosen = {"orbit": (_one_orbit,), "window": (case_track, _window_states), "budget": (_budget,)}
+    for compute in (fn for need in needs for fn in chosen[need]):
         try:
             compute(case)
         except ValueError:
@@ -315,7 +322,13 @@ def _budget(case: Any) -> Any:
     budget section, or without the spacecraft's mass and Isp, has no budget chart."""
     if getattr(case, "budget", None) is None:
         raise ValueError("no budget section in this case")
-    return _cached(case, "budget", lambda c: budget_for_case(c).budget)
+    return budget_report(case).budget
+
+
+def budget_report(case: Any) -> Any:
+    """The case's ``analysis.BudgetReport``, cached on its inputs: the budget chart and the
+    budget's results share it."""
+    return _cached(case, "budget", budget_for_case)
 
 
 def _label(case: Any) -> str:

@@ -20,7 +20,7 @@ import ipywidgets as w
 from orbitledger import analysis
 
 from .livefigures import load_bokehjs
-from .results import GROUP_TITLES, format_value
+from .results import GROUP_TITLES, format_value, unit_html
 from .snapshot import TradeView
 from .style import style_sheet
 
@@ -41,10 +41,16 @@ CRITERIA: dict[str, str] = {
     "dv_total_km_s": "min",
     "budget_total_km_s": "min",
     "propellant_kg": "min",
+    "propellant_total_kg": "min",
+    "disposal_dv_km_s": "min",
+    # What is left is better when there is more of it: spare propellant, mass after the burns.
+    "propellant_margin_kg": "max",
+    "final_mass_kg": "max",
 }
 
 # Patterns for results named by later work: (substring, rule).
 _PATTERNS: tuple[tuple[str, str], ...] = (
+    ("margin", "max"),  # spare of something (checked before "propellant")
     ("contact", "max"),
     ("passes_per_day", "max"),
     ("gap", "min"),
@@ -168,7 +174,7 @@ class TradeTable:
             better = {"min": "lower", "max": "higher", "abs-min": "nearer 0"}.get(rule or "", "")
             out.append(
                 f'<tr data-result="{html.escape(name)}"><td>{html.escape(text)}</td>'
-                f'<td class="ol-u">{html.escape(unit)}</td>{"".join(cells)}'
+                f'<td class="ol-u">{unit_html(unit)}</td>{"".join(cells)}'
                 f'<td class="ol-u">{better}</td></tr>'
             )
         out.append("</table>")

@@ -10,22 +10,30 @@ from __future__ import annotations
 
 import asyncio
 from collections.abc import Callable, Hashable
+from typing import Any
 
 __all__ = ["Debouncer"]
 
 
 class Debouncer:
-    """``trigger(key, fn)`` runs ``fn()`` ``delay_s`` after the last trigger with that key."""
+    """``trigger(key, fn)`` runs ``fn()`` ``delay_s`` after the last trigger with that key.
 
-    def __init__(self, delay_s: float = 0.3) -> None:
+    ``loop``: what schedules the pending action (anything with asyncio's ``call_later``);
+    default the running asyncio loop. Tests pass a fake clock.
+    """
+
+    def __init__(self, delay_s: float = 0.3, *, loop: Any = None) -> None:
         self.delay_s = delay_s
-        self._pending: dict[Hashable, tuple[asyncio.TimerHandle, Callable[[], None]]] = {}
+        self.loop = loop
+        self._pending: dict[Hashable, tuple[Any, Callable[[], None]]] = {}
 
     def trigger(self, key: Hashable, fn: Callable[[], None]) -> None:
-        try:
-            loop = asyncio.get_running_loop()
-        except RuntimeError:
-            loop = None
+        loop = self.loop
+        if loop is None:
+            try:
+                loop = asyncio.get_running_loop()
+            except RuntimeError:
+                loop = None
         self.cancel(key)
         if loop is None or self.delay_s <= 0.0:
             fn()
@@ -43,12 +51,14 @@ class Debouncer:
         if entry is not None:
             entry[0].cancel()
 
-    def flush(self) -> None:
-        """Run every pending action now (before undo, save or close)."""
-        for key in list(self._pending):
-            handle, _fn = self._pending[key]
-            handle.cancel()
-            self._fire(key)
+    def flush(self, key: Hashable | None = None) -> None:
+        """Run the pending action of ``key`` now (Enter), or every pending action (before
+        undo, save or close)."""
+        for k in list(self._pending) if key is None else [key]:
+            entry = self._pending.get(k)
+            if entry is not None:
+                entry[0].cancel()
+                self._fire(k)
 
     @property
     def pending(self) -> int:

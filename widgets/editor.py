@@ -18,21 +18,24 @@ background with a progress bar and a cancel button.
 from __future__ import annotations
 
 import html
+import threading
 import time
 from collections.abc import Callable, Mapping
-from datetime import datetime
 from typing import Any
 
 from orbitledger import analysis
 from orbitledger.case import CaseError, CaseFileChanged
 
+from . import pipeline
 from .background import Progress
 from .casefigures import prime
 from .debounce import Debouncer
 from .fields import Field
 from .form import EditorForm
+from .formview import view_case
 from .history import History
 from .snapshot import EditorSnapshot
+from .inputkeys import FIGURE_NEEDS, figure_key
 from .livefigures import load_bokehjs
 from .tables import ListTable
 
@@ -97,13 +100,17 @@ class CaseEditor(EditorSnapshot, EditorForm):
         self.window_results = window_results
         self._generation = 0
         self._pending: Any = None  # a valid case waiting on the changed-on-disk question
+        self._view_form: str | None = None  # the orbit form shown, when not the case's own
         self._results: dict[str, Any] = {}
         self._slow_results: dict[str, Any] = {}
+        self._job_needed = False
+        self._panel_lock = threading.Lock()
         self.timings: dict[str, float] = {}
         self.add_class("ol-editor")
         self.layout.width = "100%"
         self._build(figures if figures is not None else editor_figures(theme))
         self._refresh_fields(clear_errors=True)
+        self._status("opened" if self.case_file is not None else "not bound to a file")
         self._recompute()
 
     # -- public API ---------------------------------------------------------------------------
@@ -129,11 +136,30 @@ class CaseEditor(EditorSnapshot, EditorForm):
         when the file changed on disk since it was loaded: the editor then shows its question
         (reload from disk / overwrite) and keeps the edit pending until it is answered.
         """
-        return self._commit(self._case.with_changes(dict(changes)))
+        changes = dict(changes)
+        return self._commit(self._edit_base(changes).with_changes(changes))
 
     def switch_form(self, form: str) -> Any:
-        """Show the orbit in ``form`` ("classical", "apsides", "cartesian"), converted exactly."""
-        return self._commit(self._case.with_orbit_form(form))
+        """Show the orbit in ``form`` ("classical", "apsides", "cartesian"): a view, not an
+        edit. The case, its file and its fingerprint stay as they are; the fields show the
+        orbit converted, rounded where the conversion's float noise lies (``formview``). An
+        edit of an orbit field then saves the case in that form. Returns the case as shown
+        (validated, not saved); raises ``CaseError`` where the form does not apply."""
+        shown = view_case(self._case, form)
+        self._view_form = None if form == self._case.orbit.form else form
+        self._refresh_fields(clear_errors=True)
+        if self._view_form is None:
+            self._status("orbit shown as given in the case file")
+        else:
+            self._status(f"orbit shown as {form} (a view: saved when you edit a value of it)")
+        return shown
+
+    def _edit_base(self, changes: Mapping[str, Any]) -> Any:
+        """The case an edit applies to: the orbit's view in the form shown when the edit
+        touches the orbit, else the case."""
+        if self._view_form is not None and any(str(p).startswith("orbit.") for p in changes):
+            return self._orbit_case()
+        return self._case
 
     def undo(self) -> Any:
         """Return to the case before the last edit (and save it); returns the case."""
@@ -188,8 +214,9 @@ class CaseEditor(EditorSnapshot, EditorForm):
             move()
         else:
             self._history.push(new_case)
-        self._set_case(new_case, clear_errors=move is not None or force, source=source)
+        self._case = new_case  # the status line names the saved case at once, then results
         self._status("saved" if self.case_file is not None else "applied (no case file)")
+        self._set_case(new_case, clear_errors=move is not None or force, source=source)
         return new_case
 
     def _set_case(self, case: Any, *, clear_errors: bool, source: Any = None) -> None:
@@ -201,24 +228,37 @@ class CaseEditor(EditorSnapshot, EditorForm):
         self._recompute()
 
     def _recompute(self) -> None:
+        """The edit path's computations: the fast ones now, the rest in the background (see
+        ``pipeline``); each is cached on its inputs, so only what the edit changed is done."""
         t0 = time.perf_counter()
+        case = self._case
         try:
-            self._results = analysis.case_results(self._case, groups=analysis.FAST_GROUPS)
+            self._results = pipeline.fast_results(case)
         except ValueError as exc:  # a valid case the kernel cannot summarise (shown, not lost)
             self._results = {}
             self.results_panel.show_error(f"results unavailable: {exc}")
+        later = pipeline.background_needs(case)
+        now = [n for n in ("orbit", "window", "budget") if n not in later]
         if self._figures:
-            prime(self._case)  # the figures' kernel work: ephemeris, ground track
+            prime(case, now)  # the figures' kernel work: ephemeris, ground track
         t1 = time.perf_counter()
-        self._slow_results = {}
-        slow = [g for g in analysis.ALL_GROUPS if g not in analysis.FAST_GROUPS]
-        pending = "window results on the way\u2026" if slow and self.window_results else ""
-        self.results_panel.show(self._results, pending)
-        self._warnings.value = html.escape(" ".join(_case_warnings(self._case)))
+        self._slow_results, failed, missing = pipeline.cached_background_results(case)
+        waiting = [
+            f
+            for f in self._figures
+            if FIGURE_NEEDS.get(f.name, "orbit") in later
+            and not pipeline.kernel_ready(case, FIGURE_NEEDS.get(f.name, "orbit"))
+        ]
+        self._job_needed = bool(missing or waiting)
+        self._show_results(failed)
+        self._warnings.value = html.escape(" ".join(_case_warnings(case)))
         t2 = time.perf_counter()
         data = send = 0.0
         for figure in self._figures:
-            figure.update(self._case)
+            if figure in waiting:
+                figure.mark_waiting()
+                continue
+            figure.update(case, figure_key(figure.name, case))
             data += figure.timings["build_s"]
             send += figure.timings["sync_s"]
         self.timings.update(
@@ -226,35 +266,71 @@ class CaseEditor(EditorSnapshot, EditorForm):
             figure_data_s=data,
             widget_s=self.timings.get("fields_s", 0.0) + (t2 - t1) + send,
         )
-        if slow and self.window_results:
+        if not self._job_needed:
+            self._slow_job.cancel(quiet=True)  # a run for an older case is no longer wanted
+            self._slow_job.show_idle(f"{len(self._slow_results)} window results (cached)")
+        elif self.window_results:
             self.run_window_results()
+        else:
+            self._slow_job.show_idle("not computed yet: press Run")
 
     def run_window_results(self) -> None:
-        """Compute the results over the analysis window (eclipses, contacts, lifetime...) in
-        the background; they join the results panel when done. Each edit does this itself
-        unless the editor was made with ``window_results=False``."""
+        """Compute the results over the analysis window (eclipses, contacts, lifetime, the
+        budget) and the figures that wait for them, in the background; they join the panel
+        when done. Each edit does this itself unless the editor was made with
+        ``window_results=False``; after Cancel, an edit or this method runs them again."""
         self._slow_job.start()
+        self._show_results()
 
     def _window_job(self, progress: Progress) -> dict[str, Any]:
-        slow = [g for g in analysis.ALL_GROUPS if g not in analysis.FAST_GROUPS]
-        return self._slow_groups(slow, progress, self._history_marker())
+        return self._slow_groups(list(pipeline.BACKGROUND_GROUPS), progress, self._generation)
 
     def _history_marker(self) -> int:
         return self._generation
 
     def _slow_groups(self, groups: list[str], progress: Progress, marker: int) -> dict[str, Any]:
         case, out, failed = self._case, {}, []
+        later = pipeline.background_needs(case)
+        steps = len(groups) + 1
+        t0 = time.perf_counter()
+
+        def current() -> bool:
+            return self._history_marker() == marker
+
+        def draw(need: str) -> None:
+            for figure in self._figures:
+                if FIGURE_NEEDS.get(figure.name, "orbit") == need and need in later and current():
+                    figure.update(case, figure_key(figure.name, case))
+
+        if "window" in later:  # the numerical propagation, with its own progress
+            progress(0.0, "propagating over the window\u2026")
+            prime(case, ["window"], lambda f: progress(f / steps, "propagating\u2026"))
+            draw("window")
         for k, group in enumerate(groups):
-            progress(k / len(groups), f"{group}\u2026")
+            progress((k + 1) / steps, f"{group}\u2026")
             try:
-                out.update(analysis.case_results(case, groups=[group]))
+                out.update(pipeline.slow_group(case, group))
             except ValueError as exc:  # one group that does not apply does not stop the rest
                 failed.append(f"{group}: {exc}")
+            if group == "budget":
+                prime(case, ["budget"])
+                draw("budget")
+                self.timings["budget_s"] = time.perf_counter() - t0
+            if current():
+                self._slow_results = dict(out)
+                self._show_results(failed)
         progress(1.0)
-        if self._history_marker() == marker:
-            self._slow_results = out
-            self.results_panel.show(self.results, " ".join(failed))
+        self.timings["background_s"] = time.perf_counter() - t0
+        if current():
+            self._job_needed = False
+            self._show_results(failed)
         return out
+
+    def _window_job_done(self, job: Any) -> None:
+        if job.state in ("cancelled", "failed"):
+            for figure in self._figures:
+                figure.mark_waiting(done=False)
+            self._show_results()
 
     # -- typed edits ------------------------------------------------------------------------
     def _field_edited(self, field: Field) -> None:
@@ -264,7 +340,7 @@ class CaseEditor(EditorSnapshot, EditorForm):
             field.show_error(getattr(exc, "reason", str(exc)))
             return
         try:
-            new_case = self._case.with_changes({field.path: value})
+            new_case = self._edit_base({field.path: value}).with_changes({field.path: value})
         except CaseError as exc:
             self._show_refusal(exc, field)
             return
@@ -280,15 +356,14 @@ class CaseEditor(EditorSnapshot, EditorForm):
         self._guarded(lambda: self._commit(new_case, source=table))
 
     def _form_switched(self, change: dict[str, Any]) -> None:
-        if getattr(self, "_quiet_form", False) or change["new"] == self._case.orbit.form:
+        if getattr(self, "_quiet_form", False):
             return
         try:
             self.switch_form(change["new"])
-        except (CaseError, CaseFileChanged) as exc:
-            if isinstance(exc, CaseError):
-                self._status(_error_text(exc), error=True)
+        except CaseError as exc:
+            self._status(_error_text(exc), error=True)
             self._quiet_form = True
-            self.form_choice.value = self._case.orbit.form
+            self.form_choice.value = self._orbit_case().orbit.form
             self._quiet_form = False
 
     def _show_refusal(self, exc: Exception, field: Field) -> None:
@@ -307,13 +382,3 @@ class CaseEditor(EditorSnapshot, EditorForm):
             pass  # the question is on screen
         except (CaseError, IndexError, OSError) as exc:
             self._status(_error_text(exc), error=True)
-
-    def _status(self, text: str, *, error: bool = False) -> None:
-        stamp = datetime.now().strftime("%H:%M:%S")
-        fingerprint = getattr(self._case, "fingerprint", "")
-        short = f" \u00b7 case {fingerprint[:12]}" if fingerprint else ""
-        self._state.value = html.escape(f"{text} {stamp}{short}")
-        if error:
-            self._state.add_class("ol-status-error")
-        else:
-            self._state.remove_class("ol-status-error")

@@ -23,6 +23,7 @@ __all__ = [
     "TextField",
     "VectorField",
     "label_for",
+    "on_enter",
     "unit_for",
 ]
 
@@ -147,6 +148,12 @@ class Field:
     def on_edit(self, fn: Callable[[Field], None]) -> None:
         self._callbacks.append(fn)
 
+    def on_commit(self, fn: Callable[[Field], None]) -> None:
+        """Register ``fn(field)`` for Enter in one of the field's text inputs."""
+        for widget in self.widget.children:
+            if isinstance(widget, w.Text):
+                on_enter(widget, lambda: fn(self))
+
     @property
     def value(self) -> Any:
         """The typed value, parsed; raises :class:`FieldParseError` with the reason."""
@@ -178,6 +185,17 @@ class Field:
 
     def _write(self, value: Any) -> None:  # pragma: no cover - abstract
         raise NotImplementedError
+
+
+def on_enter(text: w.Text, fn: Callable[[], None]) -> None:
+    """Call ``fn()`` when the user presses Enter in ``text`` (the front end's "submit" message;
+    the value typed before it has arrived already, as the input updates continuously)."""
+
+    def handle(_widget: Any, content: dict, _buffers: Any) -> None:
+        if content.get("event") == "submit":
+            fn()
+
+    text.on_msg(handle)
 
 
 def _text_input(label: str, path: str, width: str = INPUT_WIDTH, described: bool = True) -> w.Text:

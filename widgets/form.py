@@ -9,18 +9,25 @@ from __future__ import annotations
 
 import html
 from collections.abc import Callable
+from datetime import datetime
 from pathlib import Path
 from typing import Any
 
 import ipywidgets as w
 
+from orbitledger.case import CaseError
+
+from . import pipeline
 from .background import BackgroundJob
 from .fields import BoolField, ChoiceField, Field, NumberField, TextField, VectorField
+from .formview import view_case
+from .inputkeys import FIGURE_NEEDS
 from .livefigures import LiveFigure
+from .plan_tables import AllowanceTable, BurnTable
 from .results import ResultsPanel
 from .sections import SECTIONS, field_specs
 from .style import style_sheet
-from .tables import BurnTable, StationTable
+from .tables import StationTable
 
 __all__ = ["EditorForm"]
 
@@ -112,17 +119,28 @@ class EditorForm(w.VBox):
         self.results_panel = ResultsPanel()
         self._warnings = w.HTML("")
         self._warnings.add_class("ol-warn")
-        self.stations = StationTable([], self._propose_list)
-        self.burns = BurnTable([], self._propose_list)
-        self._slow_job = BackgroundJob(
-            "window results", self._window_job, describe=lambda r: f"{len(r)} window results"
+        tables = (StationTable, BurnTable, AllowanceTable)
+        self.stations, self.burns, self.allowances = (
+            t([], self._propose_list, self._debounce.trigger, self._debounce.flush) for t in tables
         )
-        if self.window_results:
-            self._slow_job.run_button.layout.display = "none"
-        else:
-            self._slow_job.label.layout.display = "none"
+        self._slow_job = BackgroundJob(
+            "window results",
+            self._window_job,
+            describe=lambda r: f"{len(r)} window results",
+            on_done=self._window_job_done,
+            auto=self.window_results,
+        )
+        later = pipeline.background_needs(self._case)
         self._figures = [
-            LiveFigure(name, build, self._case, data) for name, build, data in figure_builders
+            LiveFigure(
+                name,
+                build,
+                self._case,
+                data,
+                defer=FIGURE_NEEDS.get(name, "orbit") in later
+                and not pipeline.kernel_ready(self._case, FIGURE_NEEDS.get(name, "orbit")),
+            )
+            for name, build, data in figure_builders
         ]
         figure_box = w.HBox([f.widget for f in self._figures])
         figure_box.add_class("ol-figures")
@@ -150,8 +168,27 @@ class EditorForm(w.VBox):
             grid,
             self.stations.widget,
             self.burns.widget,
+            self.allowances.widget,
             figure_box,
         ]
+
+    def _orbit_case(self) -> Any:
+        """The case whose orbit the form shows: the case itself, or its view in the orbit form
+        chosen (``formview``; not saved until a value is edited in that form)."""
+        form = getattr(self, "_view_form", None)
+        if form is None or form == self._case.orbit.form:
+            self._view_form = None
+            return self._case
+        cached = getattr(self, "_view_cache", None)
+        if cached is not None and cached[0] is self._case and cached[1] == form:
+            return cached[2]
+        try:
+            shown = view_case(self._case, form)
+        except CaseError:  # the form no longer applies (an orbit made hyperbolic)
+            self._view_form = None
+            return self._case
+        self._view_cache = (self._case, form, shown)
+        return shown
 
     def _refresh_fields(self, *, clear_errors: bool, source: Any = None) -> None:
         case = self._case
@@ -160,7 +197,7 @@ class EditorForm(w.VBox):
         self._path.value = html.escape(str(Path(path).name) if path else "not bound to a file")
         self.undo_button.disabled = not self._history.can_undo
         self.redo_button.disabled = not self._history.can_redo
-        form = case.orbit.form
+        form = self._orbit_case().orbit.form
         if self.form_choice.value != form:
             self._quiet_form = True
             try:
@@ -170,14 +207,18 @@ class EditorForm(w.VBox):
         for key, _title, _paths in SECTIONS:
             self._refresh_section(key, clear_errors)
         data = case.model_dump(mode="json")
-        for table in (self.stations, self.burns):
-            present = table.path in data
+        for table in (self.stations, self.burns, self.allowances):
+            *parents, last = table.path.split(".")
+            parent: Any = data
+            for part in parents:  # budget.allowances: shown when the case has a budget
+                parent = parent.get(part) if isinstance(parent, dict) else None
+            present = isinstance(parent, dict) and last in parent
             table.widget.layout.display = "flex" if present else "none"
             if present:
-                table.sync(data[table.path] or [], typed_here=source is table)
+                table.sync(parent[last] or [], typed_here=source is table)
 
     def _refresh_section(self, key: str, clear_errors: bool) -> None:
-        specs = field_specs(self._case, key)
+        specs = field_specs(self._orbit_case() if key == "orbit" else self._case, key)
         box = self._sections[key]
         shown = [p for p, f in self._fields.items() if getattr(f, "_section", None) == key]
         if [s.path for s in specs] != shown:
@@ -213,5 +254,29 @@ class EditorForm(w.VBox):
             field.input.placeholder = "the case epoch"
         field._section = section  # type: ignore[attr-defined]
         field.on_edit(lambda f: self._debounce.trigger(f.path, lambda: self._field_edited(f)))
+        field.on_commit(lambda f: self._debounce.flush(f.path))  # Enter applies at once
         self._fields[spec.path] = field
         return field
+
+    def _show_results(self, failed: list[str] = ()) -> None:
+        job = self._slow_job
+        if not self._job_needed:
+            note = ""
+        elif job.state == "running":
+            note = "window results on the way\u2026"
+        elif job.state == "cancelled":
+            note = "window results cancelled: press \u201cRun: window results\u201d to compute them"
+        else:
+            note = "window results not computed yet: press \u201cRun: window results\u201d"
+        with self._panel_lock:
+            self.results_panel.show(self.results, " ".join([*failed, note]).strip())
+
+    def _status(self, text: str, *, error: bool = False) -> None:
+        stamp = datetime.now().strftime("%H:%M:%S")
+        fingerprint = getattr(self._case, "fingerprint", "")
+        short = f" \u00b7 case {fingerprint[:12]}" if fingerprint else ""
+        self._state.value = html.escape(f"{text} {stamp}{short}")
+        if error:
+            self._state.add_class("ol-status-error")
+        else:
+            self._state.remove_class("ol-status-error")

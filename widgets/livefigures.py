@@ -13,6 +13,7 @@ removed) the on-screen model is replaced.
 from __future__ import annotations
 
 import json
+import threading
 import time
 from collections.abc import Callable, Iterator
 from typing import Any
@@ -68,11 +69,21 @@ def walk_models(root: Model) -> list[Model]:
 
 
 def _same_value(a: Any, b: Any) -> bool:
+    """Equal values, NaN equal to NaN (the gaps of a drawn line): a column that did not change
+    is not sent again. Lists of arrays (patches' xs) compare item by item."""
     if isinstance(a, np.ndarray) or isinstance(b, np.ndarray):
+        x, y = np.asarray(a), np.asarray(b)
+        if x.shape != y.shape:
+            return False
         try:
-            return bool(np.array_equal(np.asarray(a), np.asarray(b)))
+            nan_ok = x.dtype.kind in "fc" and y.dtype.kind in "fc"
+            return bool(np.array_equal(x, y, equal_nan=nan_ok))
         except (TypeError, ValueError):
             return False
+    if isinstance(a, list | tuple) and isinstance(b, list | tuple):
+        return len(a) == len(b) and all(_same_value(x, y) for x, y in zip(a, b, strict=True))
+    if isinstance(a, float) and isinstance(b, float) and a != a and b != b:
+        return True  # both NaN
     try:
         return bool(a == b)
     except (TypeError, ValueError):
@@ -133,6 +144,8 @@ class LiveFigure:
         build: Callable[[Any], Model],
         case: Any,
         data: Callable[[Any, Any], dict[str, dict[str, Any]]] | None = None,
+        *,
+        defer: bool = False,
     ) -> None:
         from jupyter_bokeh import BokehModel
 
@@ -148,9 +161,38 @@ class LiveFigure:
         self.timings = {"build_s": 0.0, "sync_s": 0.0}
         self.widget = w.VBox([self.note])
         self.widget.add_class("ol-figure")
-        self.update(case)
+        self.waiting = False
+        self._key: str | None = None
+        self._lock = threading.Lock()  # the background job updates some figures
+        if defer:
+            self.mark_waiting()
+        else:
+            self.update(case)
 
-    def update(self, case: Any) -> None:
+    def mark_waiting(self, done: bool = True) -> None:
+        """Say that this figure waits for the background job (``done=False``: the job was
+        cancelled or failed, so what is drawn is of an earlier case)."""
+        if done:
+            self.waiting = True
+            text = "on the way (computed in the background)\u2026"
+            self.note.value = f"{self.name}: {text}" if self.model is None else "updating\u2026"
+        elif self.waiting:
+            self.note.value = f"{self.name}: not updated for this case (window results not run)"
+
+    def update(self, case: Any, key: str | None = None) -> None:
+        """Draw ``case``; ``key`` (``inputkeys.figure_key``): when it equals the last drawn
+        one, the drawing would be the same and nothing is done."""
+        with self._lock:
+            self.waiting = False
+            if key is not None and key == self._key and self.model is not None:
+                self.timings = {"build_s": 0.0, "sync_s": 0.0}
+                return
+            self._key = None
+            self._update(case)
+            if self.model is not None and not self.note.value:
+                self._key = key
+
+    def _update(self, case: Any) -> None:
         t0 = time.perf_counter()
         try:
             if self.model is not None and self.data is not None:

@@ -13,7 +13,7 @@ from typing import Any
 
 import ipywidgets as w
 
-__all__ = ["GROUP_TITLES", "ResultsPanel", "format_value", "results_table_html"]
+__all__ = ["GROUP_TITLES", "ResultsPanel", "format_value", "results_table_html", "unit_html"]
 
 # One title per result group of orbitledger.analysis (ALL_GROUPS).
 GROUP_TITLES = {
@@ -56,7 +56,8 @@ def format_value(value: Any, unit: str = "") -> str:
     return f"{value:.6g}".replace("-", "\u2212")
 
 
-def _unit_html(unit: str) -> str:
+def unit_html(unit: str) -> str:
+    """A unit as shown in the editor and the trade view alike (km^2/s^2 as km\u00b2/s\u00b2)."""
     return html.escape(unit.replace("^2", "\u00b2").replace("^3", "\u00b3"))
 
 
@@ -73,7 +74,7 @@ def results_table_html(results: Mapping[str, Any], pending: str = "") -> str:
             f'<tr data-result="{html.escape(name)}" title="{html.escape(name)}">'
             f"<td>{html.escape(r.description)}</td>"
             f'<td class="ol-num">{format_value(r.value, r.unit)}</td>'
-            f'<td class="ol-u">{_unit_html(r.unit)}</td></tr>'
+            f'<td class="ol-u">{unit_html(r.unit)}</td></tr>'
         )
     body = "".join(rows) or '<tr><td class="ol-note">no results</td></tr>'
     notes = ""

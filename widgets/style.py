@@ -94,6 +94,8 @@ CSS = """
   border-bottom: none; font-size: var(--jp-ui-font-size0, 11px); text-transform: uppercase; }
 .ol-results td.ol-u, .ol-trade td.ol-u { color: var(--ol-muted); font-size: var(--jp-ui-font-size0, 11px); }
 .ol-trade td.ol-best { background: var(--ol-accent-soft); font-weight: 700; }
+.ol-results td.ol-num, .ol-trade td.ol-num, .ol-results td.ol-u, .ol-trade td.ol-u {
+  white-space: nowrap; }
 .ol-trade td.ol-best::after { content: " \\2605"; color: var(--ol-accent); }
 .ol-job { align-items: center; }
 .ol-job .widget-label { color: var(--ol-muted); }

@@ -1,50 +1,76 @@
-"""Editable tables for the list sections of a case: ground stations and the burn plan.
+"""Editable tables for the list sections of a case: the ground stations here, the burn plan
+and the budget's allowances in ``plan_tables``.
 
-A table shows one row per list entry, an error line per row, and Add / Remove buttons. Every
-edit proposes the whole new list for its path (``stations`` or ``burns``) to the editor, which
-validates it through the case model like any other edit; a refused list leaves the case as it
-was and the reason appears on the row the error names (``stations.1.lat_deg``).
+A table shows one row per list entry, an error line per row, and Add / Remove buttons. A cell
+commits like a field of the form: after the form's debounce (the quiet time after the last
+keystroke), at once on Enter, and at once for a choice or a checkbox; never per keystroke, so a
+half-typed value ("9" on the way to "95") is never proposed. A commit proposes the whole new
+list for its path (``stations``, ``burns``, ``budget.allowances``) to the editor, which
+validates it through the case model like any other edit. A refused list leaves the case and
+the file as they were; the cell the error names (``stations.1.lat_deg``) is outlined, and the
+row's error line names its column and the reason.
 """
 
 from __future__ import annotations
 
-import json
 from collections.abc import Callable, Sequence
 from typing import Any
 
 import ipywidgets as w
 
-from .fields import FieldParseError, _format_number, _parse_number, unit_for
+from .fields import FieldParseError, _format_number, _parse_number, on_enter
 
-__all__ = ["BurnTable", "StationTable"]
+__all__ = ["ListTable", "StationTable"]
 
 Propose = Callable[[str, list[dict[str, Any]], "ListTable"], None]
+Schedule = Callable[[str, Callable[[], None]], None]
 
 
-def _cell(value: str, width: str, tooltip: str) -> w.Text:
+def text_cell(value: str, width: str, tooltip: str) -> w.Text:
     return w.Text(
         value=value, continuous_update=True, tooltip=tooltip, layout=w.Layout(width=width)
     )
 
 
-def _header(columns: Sequence[tuple[str, str]]) -> w.HBox:
-    cells = [w.HTML(f"<b>{text}</b>", layout=w.Layout(width=width)) for text, width in columns]
+def _header(columns: Sequence[tuple[str, str, str]]) -> w.HBox:
+    # The same widths as the cells below, with the cells' own margin, so the columns line up.
+    cells = [
+        w.HTML(f"<b>{_escape(text)}</b>", layout=w.Layout(width=width))
+        for _key, text, width in columns
+    ]
     box = w.HBox(cells)
     box.add_class("ol-note")
+    box.add_class("ol-table-header")
     return box
 
 
 class ListTable:
-    """Base: rows built from a list of dicts; ``propose(path, rows, table)`` on each edit."""
+    """Base: rows built from a list of dicts; ``propose(path, rows, table)`` on each commit.
+
+    ``schedule(key, fn)`` runs ``fn`` after the debounce (the editor's debouncer; default at
+    once) and ``flush(key)`` runs a pending one now (Enter).
+    """
 
     path = ""
     title = ""
+    noun = "row"
+    # (entry key, header text, width): one per cell, in order.
+    columns: Sequence[tuple[str, str, str]] = ()
 
-    def __init__(self, entries: list[dict[str, Any]], propose: Propose) -> None:
+    def __init__(
+        self,
+        entries: list[dict[str, Any]],
+        propose: Propose,
+        schedule: Schedule | None = None,
+        flush: Callable[[str], None] | None = None,
+    ) -> None:
         self.propose = propose
+        self.schedule: Schedule = schedule or (lambda _key, fn: fn())
+        self.flush: Callable[[str], None] = flush or (lambda _key: None)
         self.entries = [dict(e) for e in entries]
         self.rows: list[w.HBox] = []
         self.errors: list[w.HTML] = []
+        self.cells: list[dict[str, w.Widget]] = []
         self.add_button = w.Button(description=f"Add {self.noun}", icon="plus")
         self.add_button.layout = w.Layout(width="11em")
         self.add_button.on_click(lambda _b: self._add())
@@ -58,17 +84,16 @@ class ListTable:
         self._quiet = False
         self.show(entries)
 
-    noun = "row"
-
-    # subclasses: _row_widgets(index, entry) -> (inputs, reader), header columns, new entry
+    # subclasses: _row_widgets(index, entry) -> (cells by entry key, reader, writer)
     def show(self, entries: list[dict[str, Any]]) -> None:
         """Show ``entries`` (the case's current list), rebuilding the rows."""
         self.entries = [dict(e) for e in entries]
         self._readers: list[Callable[[], dict[str, Any]]] = []
-        self.rows, self.errors = [], []
+        self._writers: list[Callable[[dict[str, Any]], None]] = []
+        self.rows, self.errors, self.cells = [], [], []
         children: list[w.Widget] = [_header(self.columns)] if entries else []
         for index, entry in enumerate(self.entries):
-            inputs, reader = self._row_widgets(index, entry)
+            cells, reader, writer = self._row_widgets(index, entry)
             remove = w.Button(
                 description="Remove", tooltip=f"Remove {self.noun} {index + 1}", icon="trash"
             )
@@ -76,14 +101,19 @@ class ListTable:
             remove.on_click(lambda _b, i=index: self._remove(i))
             error = w.HTML("", layout=w.Layout(flex="1 1 10em"))
             error.add_class("ol-error")
-            for widget in inputs:
-                if isinstance(widget, w.ValueWidget):
-                    widget.observe(lambda _c, i=index: self._edited(i), names="value")
-            row = w.HBox([*inputs, remove, error])
+            for widget in cells.values():
+                if isinstance(widget, w.Text):
+                    widget.observe(lambda _c, i=index: self._typed(i), names="value")
+                    on_enter(widget, lambda i=index: self.flush(self._key(i)))
+                elif isinstance(widget, w.ValueWidget):  # a choice or a checkbox: a commit
+                    widget.observe(lambda _c, i=index: self._chosen(i), names="value")
+            row = w.HBox([*cells.values(), remove, error])
             row.add_class("ol-field")
             self.rows.append(row)
             self.errors.append(error)
+            self.cells.append(cells)
             self._readers.append(reader)
+            self._writers.append(writer)
             children.append(row)
         if not entries:
             children.append(w.HTML(f'<span class="ol-note">no {self.noun}s in this case</span>'))
@@ -92,33 +122,75 @@ class ListTable:
 
     def sync(self, entries: list[dict[str, Any]], *, typed_here: bool) -> None:
         """Follow the case's list. After an edit typed in this table the cells already show it
-        (keep them, and the keyboard focus); otherwise, or when rows came or went, rebuild."""
-        if typed_here and len(entries) == len(self.entries):
-            self.entries = [dict(e) for e in entries]
-            self.clear_errors()
-        elif entries != self.entries or typed_here:
+        (keep them, and the keyboard focus); otherwise the cells take the case's values in
+        place; rows are rebuilt only when rows came or went."""
+        if len(entries) != len(self.entries) or not self.rows and entries:
             self.show(entries)
-        else:
-            self.clear_errors()
+            return
+        if not typed_here and entries != self.entries:
+            self._quiet = True
+            try:
+                for writer, entry in zip(self._writers, entries, strict=True):
+                    writer(entry)
+            finally:
+                self._quiet = False
+        self.entries = [dict(e) for e in entries]
+        self.clear_errors()
 
     def clear_errors(self) -> None:
         for error in self.errors:
             error.value = ""
+        for cells in self.cells:
+            for cell in cells.values():
+                cell.remove_class("ol-invalid-cell")
         self.message.value = ""
 
+    def column_of(self, path: str | None) -> str | None:
+        """The entry key of the column that ``path`` (``stations.1.lat_deg``) names."""
+        if not path or not path.startswith(self.path):
+            return None
+        rest = path[len(self.path) :].lstrip(".[").split(".", 1)
+        if len(rest) < 2:
+            return None
+        return rest[1].split(".", 1)[0].split("[", 1)[0].split(" ", 1)[0]
+
     def show_error(self, path: str | None, message: str) -> None:
-        """Show ``message`` on the row named in ``path`` (``stations.1.lat_deg``), else below."""
+        """Show ``message`` on the row named in ``path`` (``stations.1.lat_deg``), naming the
+        column, and outline that cell; a message about the whole list goes below the table."""
         index = _row_index(self.path, path)
-        target = self.errors[index] if index is not None and index < len(self.errors) else None
-        (target or self.message).value = _escape(message)
+        if index is None or index >= len(self.errors):
+            self.message.value = _escape(message)
+            return
+        key = self.column_of(path)
+        cells = self.cells[index]
+        labels = {k: text for k, text, _w in self.columns}
+        if key in cells:
+            cells[key].add_class("ol-invalid-cell")
+            message = f"{labels.get(key, key)}: {message}"
+        self.errors[index].value = _escape(f"{self.noun} {index + 1}, {message}")
+
+    def _key(self, index: int) -> str:
+        return f"{self.path}.{index}"
+
+    def _typed(self, index: int) -> None:
+        if not self._quiet:
+            self.schedule(self._key(index), lambda: self._edited(index))
+
+    def _chosen(self, index: int) -> None:
+        if not self._quiet:
+            self._typed(index)
+            self.flush(self._key(index))
 
     def _edited(self, index: int) -> None:
-        if self._quiet:
-            return
+        if index >= len(self._readers):
+            return  # the row went away meanwhile
+        for cell in self.cells[index].values():
+            cell.remove_class("ol-invalid-cell")
+        self.errors[index].value = ""
         try:
             new_row = self._readers[index]()
         except FieldParseError as exc:
-            self.errors[index].value = _escape(f"{exc.path}: {exc.reason}")
+            self.show_error(exc.path, exc.reason)
             return
         entries = [dict(e) for e in self.entries]
         entries[index] = new_row
@@ -134,8 +206,6 @@ class ListTable:
     def _new_entry(self) -> dict[str, Any]:  # pragma: no cover - abstract
         raise NotImplementedError
 
-    columns: Sequence[tuple[str, str]] = ()
-
     def _row_widgets(self, index: int, entry: dict[str, Any]):  # pragma: no cover - abstract
         raise NotImplementedError
 
@@ -149,36 +219,43 @@ def _row_index(prefix: str, path: str | None) -> int | None:
     return int(head) if head.isdigit() else None
 
 
+def cells_for(columns: Sequence[tuple[str, str, str]], path: str, index: int) -> dict[str, w.Text]:
+    return {
+        key: text_cell("", width, f"{path}.{index}.{key} ({text})") for key, text, width in columns
+    }
+
+
 class StationTable(ListTable):
     path = "stations"
     title = "Ground stations"
     noun = "station"
-    _NUMBERS = ("lat_deg", "lon_deg", "height_km", "elevation_mask_deg")
     columns = (
-        ("name", "11em"),
-        ("latitude (deg)", "8.5em"),
-        ("longitude (deg)", "8.5em"),
-        ("height (km)", "8.5em"),
-        ("mask (deg)", "8.5em"),
+        ("name", "name", "12em"),
+        ("lat_deg", "latitude (deg)", "8.5em"),
+        ("lon_deg", "longitude (deg)", "8.5em"),
+        ("height_km", "height (km)", "8.5em"),
+        ("elevation_mask_deg", "mask (deg)", "8.5em"),
     )
 
     def _row_widgets(self, index: int, entry: dict[str, Any]):
-        name = _cell(str(entry.get("name", "")), "11em", f"stations.{index}.name")
-        numbers = {
-            key: _cell(
-                _format_number(entry.get(key)), "7.5em", f"stations.{index}.{key} ({unit_for(key)})"
-            )
-            for key in self._NUMBERS
-        }
+        cells = cells_for(self.columns, self.path, index)
+
+        def write(entry: dict[str, Any]) -> None:
+            cells["name"].value = str(entry.get("name", ""))
+            for key, cell in cells.items():
+                if key != "name":
+                    cell.value = _format_number(entry.get(key))
 
         def read() -> dict[str, Any]:
             row = dict(self.entries[index])
-            row["name"] = name.value.strip()
-            for key, cell in numbers.items():
-                row[key] = _parse_number(f"stations.{index}.{key}", cell.value, optional=False)
+            row["name"] = cells["name"].value.strip()
+            for key, cell in cells.items():
+                if key != "name":
+                    row[key] = _parse_number(f"stations.{index}.{key}", cell.value, optional=False)
             return row
 
-        return [name, *numbers.values()], read
+        write(entry)
+        return cells, read, write
 
     def _new_entry(self) -> dict[str, Any]:
         taken = {e.get("name") for e in self.entries}
@@ -191,97 +268,6 @@ class StationTable(ListTable):
             "lon_deg": 0.0,
             "height_km": 0.0,
             "elevation_mask_deg": 5.0,
-        }
-
-
-_AT_CHOICES = (
-    ("at an epoch", "epoch"),
-    ("next periapsis", "periapsis"),
-    ("next apoapsis", "apoapsis"),
-    ("next ascending node", "ascending"),
-    ("next descending node", "descending"),
-)
-
-
-def _at_key(at: dict[str, Any]) -> str:
-    if "epoch_utc" in at:
-        return "epoch"
-    return str(at.get("apsis") or at.get("node") or "periapsis")
-
-
-def _at_value(key: str, epoch_text: str) -> dict[str, Any]:
-    if key == "epoch":
-        return {"epoch_utc": epoch_text.strip()}
-    if key in ("periapsis", "apoapsis"):
-        return {"apsis": key}
-    return {"node": key}
-
-
-class BurnTable(ListTable):
-    """The burn plan: when (epoch, apsis or node) and what (a delta-v in RTN, or a transfer)."""
-
-    path = "burns"
-    title = "Burn plan"
-    noun = "burn"
-    columns = (
-        ("name", "10em"),
-        ("when", "11em"),
-        ("epoch (UTC)", "13em"),
-        ("delta-v R, T, N (km/s) or transfer (JSON)", "22em"),
-    )
-
-    def _row_widgets(self, index: int, entry: dict[str, Any]):
-        name = _cell(str(entry.get("name", "")), "10em", f"burns.{index}.name")
-        at = entry.get("at") or {}
-        when = w.Dropdown(
-            options=list(_AT_CHOICES), value=_at_key(at), layout=w.Layout(width="11em")
-        )
-        when.tooltip = f"burns.{index}.at"
-        epoch = _cell(str(at.get("epoch_utc", "")), "13em", f"burns.{index}.at.epoch_utc")
-        epoch.disabled = when.value != "epoch"
-        when.observe(lambda c: setattr(epoch, "disabled", c["new"] != "epoch"), names="value")
-        if "transfer" in entry and entry["transfer"] is not None:
-            what = _cell(json.dumps(entry["transfer"]), "22em", f"burns.{index}.transfer (JSON)")
-        else:
-            dv = entry.get("dv_rtn_km_s") or [0.0, 0.0, 0.0]
-            what = _cell(
-                ", ".join(_format_number(x) for x in dv),
-                "22em",
-                f"burns.{index}.dv_rtn_km_s (km/s)",
-            )
-
-        def read() -> dict[str, Any]:
-            row = {
-                k: v for k, v in self.entries[index].items() if k not in ("dv_rtn_km_s", "transfer")
-            }
-            row["name"] = name.value.strip()
-            row["at"] = _at_value(when.value, epoch.value)
-            text = what.value.strip()
-            if text.startswith("{"):
-                try:
-                    row["transfer"] = json.loads(text)
-                except json.JSONDecodeError as exc:
-                    raise FieldParseError(
-                        f"burns.{index}.transfer", text, f"not JSON: {exc.msg}"
-                    ) from None
-            else:
-                parts = [p for p in text.replace(";", ",").split(",") if p.strip()]
-                if len(parts) != 3:
-                    raise FieldParseError(
-                        f"burns.{index}.dv_rtn_km_s", text, "three numbers R, T, N in km/s"
-                    )
-                row["dv_rtn_km_s"] = [
-                    _parse_number(f"burns.{index}.dv_rtn_km_s", p, optional=False) for p in parts
-                ]
-            return row
-
-        return [name, when, epoch, what], read
-
-    def _new_entry(self) -> dict[str, Any]:
-        return {
-            "name": f"burn {len(self.entries) + 1}",
-            "at": {"apsis": "periapsis"},
-            "dv_rtn_km_s": [0.0, 0.0, 0.0],
         }
 
 

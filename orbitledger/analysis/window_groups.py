@@ -21,12 +21,13 @@ def _closed_orbit(case: Any) -> bool:
     return scalar(case.elements().e) < 1.0
 
 
-def eclipse_results(case: Any) -> list[Result]:
+def eclipse_results(case: Any, trajectory: Any = None) -> list[Result]:
+    """``trajectory``: the case's ``case_trajectory`` when the caller has it already."""
     if not _closed_orbit(case):
         return []
     from ..kernel.eclipses import find_eclipses, node_local_times_h
 
-    traj = case_trajectory(case)
+    traj = case_trajectory(case) if trajectory is None else trajectory
     search = find_eclipses(traj, case.window.duration_s)
     orbits = [o for o in search.per_orbit if o.end_s - o.start_s >= 0.999 * traj.period_s]
     rows = [
@@ -89,12 +90,13 @@ def eclipse_results(case: Any) -> list[Result]:
     return rows
 
 
-def contact_results(case: Any) -> list[Result]:
+def contact_results(case: Any, trajectory: Any = None) -> list[Result]:
+    """``trajectory``: the case's ``case_trajectory`` when the caller has it already."""
     if not case.stations or not _closed_orbit(case):
         return []
     from ..kernel.passes import ANY_STATION, station_passes
 
-    traj = case_trajectory(case)
+    traj = case_trajectory(case) if trajectory is None else trajectory
     duration = case.window.duration_s
     search = station_passes(traj, case_stations(case), duration, step_s=case.window.step_s)
     days = duration / _DAY_S
@@ -195,15 +197,18 @@ def lifetime_results(case: Any) -> list[Result]:
     ]
 
 
-def budget_results(case: Any) -> list[Result]:
-    """The delta-v budget's totals, when the case has a budget section and a propulsion Isp."""
+def budget_results(case: Any, report: Any = None) -> list[Result]:
+    """The delta-v budget's totals, when the case has a budget section and a propulsion Isp.
+    ``report``: the case's ``budget_for_case`` when the caller has it already (the editor
+    shares one with the budget chart)."""
     if case.budget is None or case.spacecraft is None or case.spacecraft.isp_s is None:
         return []
     if not _closed_orbit(case):
         return []
-    from .manoeuvres import budget_for_case
+    if report is None:
+        from .manoeuvres import budget_for_case
 
-    report = budget_for_case(case)
+        report = budget_for_case(case)
     b = report.budget
     rows = [
         Result(

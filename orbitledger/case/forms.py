@@ -17,7 +17,7 @@ from .errors import CaseError
 from .fields import normalise_angle_deg
 from .orbit import ApsidesOrbit, CartesianOrbit, ClassicalOrbit
 
-__all__ = ["orbit_elements", "orbit_state", "orbit_in_form"]
+__all__ = ["check_orbit_paths", "orbit_elements", "orbit_state", "orbit_in_form"]
 
 OrbitModel = ClassicalOrbit | ApsidesOrbit | CartesianOrbit
 
@@ -115,3 +115,38 @@ def orbit_in_form(orbit: OrbitModel, form: str, body: Body) -> dict:
             **_anomaly(orbit, elements),
         }
     raise CaseError("orbit.form", form, "must be one of classical, apsides, cartesian")
+
+
+_FORM_MODELS = {"classical": ClassicalOrbit, "apsides": ApsidesOrbit, "cartesian": CartesianOrbit}
+_FORM_WORDS = {
+    "classical": "classical elements",
+    "apsides": "apsis altitudes",
+    "cartesian": "a Cartesian state",
+}
+
+
+def check_orbit_paths(orbit: OrbitModel, changes: dict) -> None:
+    """Refuse a change of ``orbit.X`` where X is a field of another orbit form than the case's
+    (a study sweeping ``orbit.altitude_km`` over a case given in apsis altitudes): one message
+    naming the field, its form and the case's form, instead of "unknown field"."""
+    from .changes import parse_path
+
+    own = type(orbit).model_fields
+    if "orbit.form" in changes:
+        return  # the change sets the form itself: the new form's fields are expected
+    for path, value in changes.items():
+        tokens = parse_path(path)
+        if len(tokens) != 2 or tokens[0] != "orbit" or tokens[1] in own:
+            continue
+        name = tokens[1]
+        forms = [f for f, model in _FORM_MODELS.items() if name in model.model_fields]
+        if not forms:
+            continue  # unknown in every form: the model's own message says so
+        fields = ", ".join(k for k in own if k != "form")
+        raise CaseError(
+            path,
+            value,
+            f"{name} is a field of the {forms[0]} orbit form, but this case gives its orbit as "
+            f"{_FORM_WORDS[orbit.form]} (orbit.form = '{orbit.form}'): change one of {fields}, "
+            f"or convert the case first with case.with_orbit_form('{forms[0]}')",
+        )

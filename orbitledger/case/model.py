@@ -16,7 +16,7 @@ from .canonical import canonical_json, fingerprint_of, pretty_json
 from .changes import apply_changes
 from .errors import MISSING, CaseError
 from .fields import CaseModel, UtcText, rule
-from .forms import orbit_elements, orbit_in_form, orbit_state
+from .forms import check_orbit_paths, orbit_elements, orbit_in_form, orbit_state
 from .orbit import ApsidesOrbit, ClassicalOrbit, Orbit
 from .plan import AtEpoch, Budget, Burn
 from .sections import BodySection, EarthOrientation, ForceModel, Meta, Spacecraft, Station, Window
@@ -180,6 +180,7 @@ class Case(CaseModel):
         Paths as in the file: ``{"orbit.e": 0.02, "stations[0].lat_deg": 51.0}`` (or
         ``stations.0.lat_deg``). Raises CaseError naming the path for a refused change.
         """
+        check_orbit_paths(self.orbit, dict(changes))
         return case_from_data(apply_changes(self.to_data(), changes))
 
     # --- JSON ---------------------------------------------------------------------------
