@@ -175,8 +175,12 @@ _EOP_BOUND = Field(ge=-1.0, le=1.0)
 
 
 class EarthOrientation(CaseModel):
-    """Earth orientation parameters at the epoch (IERS Bulletin A values), used when converting
-    between GCRF and ITRF. Zeros are the stated default, good to about 1 s of UT1 and 0.5" of pole.
+    """Earth orientation parameters (IERS values), used when converting between GCRF and ITRF.
+
+    ``source: "values"`` (the default) uses the three numbers below over the whole window;
+    zeros are the stated default, good to about 1 s of UT1 and 0.5" of pole. ``source: "iers"``
+    looks the values up epoch by epoch in the IERS table shipped by ``astropy-iers-data``, or
+    in the finals2000A-format ``file`` named; the three numbers are then left out.
     """
 
     dut1_s: Annotated[float, _EOP_BOUND] = 0.0
@@ -185,6 +189,30 @@ class EarthOrientation(CaseModel):
     """Polar motion x_p, arcsec."""
     yp_arcsec: Annotated[float, _EOP_BOUND] = 0.0
     """Polar motion y_p, arcsec."""
+    # New fields are left out of the canonical form at their defaults, so the fingerprints of
+    # cases written before them do not change.
+    source: Literal["values", "iers"] = Field("values", exclude_if=lambda v: v == "values")
+    """Where the values come from: "values" (the three numbers above) or "iers" (the table)."""
+    file: Annotated[str, Field(min_length=1, max_length=4096)] | None = Field(
+        None, exclude_if=lambda v: v is None
+    )
+    """With source "iers": an IERS finals2000A-format file to read instead of the packaged
+    table (a relative path is taken from the current folder)."""
+
+    @model_validator(mode="after")
+    def _one_source(self) -> EarthOrientation:
+        if self.source == "values":
+            if self.file is not None:
+                raise rule("file", self.file, 'a table file needs "source": "iers"')
+            return self
+        for name in ("dut1_s", "xp_arcsec", "yp_arcsec"):
+            if getattr(self, name) != 0.0:
+                raise rule(
+                    name,
+                    getattr(self, name),
+                    'is looked up in the IERS table with "source": "iers"; leave it out',
+                )
+        return self
 
 
 class ForceModel(CaseModel):

@@ -62,6 +62,7 @@ def case_trajectory(case: Any, progress: Callable[[float], None] | None = None):
 
 
 def _header(case: Any, traj: Any, kind: str) -> dict[str, Any]:
+    from ..analysis.earth_orientation import earth_orientation_summary
     from ..kernel.timescales import utc_iso
 
     return {
@@ -76,7 +77,7 @@ def _header(case: Any, traj: Any, kind: str) -> dict[str, Any]:
             "step_s": case.window.step_s,
         },
         "propagator": traj.propagator,
-        "earth_orientation": asdict(traj.eop),
+        "earth_orientation": earth_orientation_summary(case, traj.eop),
         "model_notes": list(traj.notes),
         "utc_tai_extrapolated": bool(traj.start.utc_tai_extrapolated),
         "caution": CAUTION,

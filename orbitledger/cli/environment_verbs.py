@@ -101,6 +101,9 @@ def _compute(
         if err.file is not None:
             raise
         raise InputError(err.field, err.value, err.reason, file=str(args.case)) from None
+    eop_caution = (data.get("earth_orientation") or {}).get("caution")
+    if eop_caution and "warnings" in data:
+        data["warnings"].append(eop_caution)
     for line in data.get("warnings", []):
         print(f"orbitledger {args.verb}: warning: {line}", file=sys.stderr)
     return data
@@ -123,6 +126,12 @@ def _preamble(data: dict[str, Any]) -> list[str]:
         f"window      {w['start_utc']} + {w['duration_s']:g} s, propagator {data['propagator']}",
     ]
     lines += [f"model       {note}" for note in data["model_notes"]]
+    eop = data.get("earth_orientation") or {}
+    if eop.get("source") == "iers":
+        lines.append(
+            f"EOP         {eop['table']}, observed to {eop['observed_until_utc']}; at the start "
+            f'dUT1 {eop["dut1_s"]:.4f} s, xp {eop["xp_arcsec"]:.4f}", yp {eop["yp_arcsec"]:.4f}"'
+        )
     if data["utc_tai_extrapolated"]:
         lines.append("time        UTC - TAI extrapolated beyond the leap-second table")
     return lines + [""]
