@@ -190,6 +190,7 @@ def models_and_assumptions(case_data: dict[str, Any]) -> list[dict[str, str]]:
             "value": "UTC input; TAI, TT from pyerfa (leap seconds from its table); UT1 = UTC + dUT1",
         },
         *_earth_orientation_rows(case_data, eop),
+        *_site_rows(case_data),
         {"topic": "Density model", "value": density},
         {"topic": "Solar activity", "value": str(fm.get("solar_activity", "moderate"))},
     ]
@@ -209,6 +210,12 @@ def _earth_orientation_rows(case_data: dict[str, Any], eop: dict[str, Any]) -> l
     from orbitledger.case import case_from_data
 
     return earth_orientation_rows(case_from_data(case_data))
+
+
+def _site_rows(case_data: dict[str, Any]) -> list[dict[str, str]]:
+    from orbitledger.analysis.contacts import site_rows
+
+    return site_rows(case_data.get("stations") or [])
 
 
 def cautions_for(cases: list[dict[str, Any]]) -> list[str]:

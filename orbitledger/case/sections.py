@@ -24,6 +24,7 @@ from .fields import (
     UtcText,
     rule,
 )
+from .sites import DownlinkRate, TerrainPoint, check_downlink, check_terrain_mask, unless_default
 
 __all__ = [
     "Meta",
@@ -154,6 +155,18 @@ class Station(CaseModel):
     """Height above the ellipsoid, km (a value in metres would be out of range)."""
     elevation_mask_deg: Annotated[float, Field(ge=-5.0, le=90.0)] = 5.0
     """Lowest elevation at which the station can work the spacecraft, deg."""
+    terrain_mask: list[TerrainPoint] = unless_default([], max_length=3600)
+    """Horizon by azimuth (linear between points, closed through north); raises the mask."""
+    min_pass_duration_s: NonNegative = unless_default(0.0)
+    """Passes shorter than this are not counted, s (0: all passes)."""
+    downlink: list[DownlinkRate] = unless_default([], max_length=20)
+    """Downlink rates by elevation: data volume per pass and per day."""
+
+    @model_validator(mode="after")
+    def _site_tables(self) -> Station:
+        check_terrain_mask(self.terrain_mask)
+        check_downlink(self.downlink)
+        return self
 
 
 class Window(CaseModel):
