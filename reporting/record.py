@@ -49,6 +49,7 @@ RECORD_SCHEMA = "orbitledger.record/1"
 # Packages whose versions a reader needs to reproduce the numbers.
 _KEY_PACKAGES = (
     "numpy", "scipy", "pyerfa", "pydantic", "bokeh", "sgp4", "nbconvert", "nbclient", "ipykernel",
+    "astropy-iers-data",
 )  # fmt: skip
 
 GENERAL_CAUTION = (
@@ -189,14 +190,33 @@ def models_and_assumptions(case_data: dict[str, Any]) -> list[dict[str, str]]:
             "topic": "Time scales",
             "value": "UTC input; TAI, TT from pyerfa (leap seconds from its table); UT1 = UTC + dUT1",
         },
-        {"topic": "dUT1", "value": f"{eop.get('dut1_s', 0.0)} s"},
-        {
-            "topic": "Polar motion",
-            "value": f"xp {eop.get('xp_arcsec', 0.0)} arcsec, yp {eop.get('yp_arcsec', 0.0)} arcsec",
-        },
+        *_earth_orientation_rows(case_data, eop),
+        *_site_rows(case_data),
         {"topic": "Density model", "value": density},
         {"topic": "Solar activity", "value": str(fm.get("solar_activity", "moderate"))},
     ]
+
+
+def _earth_orientation_rows(case_data: dict[str, Any], eop: dict[str, Any]) -> list[dict[str, str]]:
+    """dUT1 and the pole: the stated values, or the IERS table and the values looked up."""
+    if eop.get("source", "values") != "iers":
+        return [
+            {"topic": "dUT1", "value": f"{eop.get('dut1_s', 0.0)} s"},
+            {
+                "topic": "Polar motion",
+                "value": f"xp {eop.get('xp_arcsec', 0.0)} arcsec, yp {eop.get('yp_arcsec', 0.0)} arcsec",
+            },
+        ]
+    from orbitledger.analysis.earth_orientation import earth_orientation_rows
+    from orbitledger.case import case_from_data
+
+    return earth_orientation_rows(case_from_data(case_data))
+
+
+def _site_rows(case_data: dict[str, Any]) -> list[dict[str, str]]:
+    from orbitledger.analysis.contacts import site_rows
+
+    return site_rows(case_data.get("stations") or [])
 
 
 def cautions_for(cases: list[dict[str, Any]]) -> list[str]:

@@ -34,9 +34,9 @@ from .fields import Field
 from .form import EditorForm
 from .formview import view_case
 from .history import History
-from .snapshot import EditorSnapshot
 from .inputkeys import FIGURE_NEEDS, figure_key
 from .livefigures import load_bokehjs
+from .snapshot import EditorSnapshot
 from .tables import ListTable
 
 __all__ = ["CaseEditor", "editor_figures"]

@@ -23,6 +23,7 @@ GROUP_TITLES = {
     "contacts": "Station contact",
     "lifetime": "Lifetime",
     "budget": "Delta-v budget",
+    "earth_orientation": "Earth orientation (IERS table)",
 }
 
 # Groups whose numbers could feed a disposal or re-entry decision (rules: safety caution).

@@ -27,8 +27,10 @@ __all__ = [
 
 
 def case_earth_orientation(case: Any) -> KernelEarthOrientation:
-    eop = case.earth_orientation
-    return KernelEarthOrientation(eop.dut1_s, eop.xp_arcsec, eop.yp_arcsec)
+    """The stated values, or the IERS table looked up per epoch (``earth_orientation``)."""
+    from .earth_orientation import eop_for_case
+
+    return eop_for_case(case)
 
 
 def case_stations(case: Any) -> tuple[KernelStation, ...]:
@@ -76,7 +78,7 @@ def case_trajectory(
     if fm.propagator == "sgp4":  # the sgp4 package sits outside the kernel, in exchange
         from ..exchange.tle import case_tle_trajectory
 
-        return case_tle_trajectory(case, duration_s=duration_s)
+        return case_tle_trajectory(case, duration_s=duration_s, eop=case_earth_orientation(case))
     numerical = fm.propagator == "numerical"
     return trajectory(
         fm.propagator,

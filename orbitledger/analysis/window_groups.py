@@ -10,7 +10,7 @@ from typing import Any
 
 import numpy as np
 
-from .inputs import ballistic_coefficient_kg_m2, case_stations, case_trajectory
+from .inputs import ballistic_coefficient_kg_m2, case_trajectory
 from .orbit_groups import scalar
 from .result import Result
 
@@ -94,11 +94,13 @@ def contact_results(case: Any, trajectory: Any = None) -> list[Result]:
     """``trajectory``: the case's ``case_trajectory`` when the caller has it already."""
     if not case.stations or not _closed_orbit(case):
         return []
-    from ..kernel.passes import ANY_STATION, station_passes
+    from ..kernel.passes import ANY_STATION
+    from .contacts import case_site_passes, volume_results
 
     traj = case_trajectory(case) if trajectory is None else trajectory
     duration = case.window.duration_s
-    search = station_passes(traj, case_stations(case), duration, step_s=case.window.step_s)
+    sites = case_site_passes(case, traj)
+    search = sites.search
     days = duration / _DAY_S
     network = [p for p in search.passes]
     contact_s = sum(_merged_length([(p.aos_s, p.los_s) for p in network]))
@@ -145,7 +147,7 @@ def contact_results(case: Any, trajectory: Any = None) -> list[Result]:
             abs_tol=1e-3,
         ),
     ]
-    return rows
+    return rows + volume_results(case, sites)
 
 
 def _merged_length(intervals: list[tuple[float, float]]) -> list[float]:

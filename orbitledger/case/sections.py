@@ -24,6 +24,7 @@ from .fields import (
     UtcText,
     rule,
 )
+from .sites import DownlinkRate, TerrainPoint, check_downlink, check_terrain_mask, unless_default
 
 __all__ = [
     "Meta",
@@ -154,6 +155,18 @@ class Station(CaseModel):
     """Height above the ellipsoid, km (a value in metres would be out of range)."""
     elevation_mask_deg: Annotated[float, Field(ge=-5.0, le=90.0)] = 5.0
     """Lowest elevation at which the station can work the spacecraft, deg."""
+    terrain_mask: list[TerrainPoint] = unless_default([], max_length=3600)
+    """Horizon by azimuth (linear between points, closed through north); raises the mask."""
+    min_pass_duration_s: NonNegative = unless_default(0.0)
+    """Passes shorter than this are not counted, s (0: all passes)."""
+    downlink: list[DownlinkRate] = unless_default([], max_length=20)
+    """Downlink rates by elevation: data volume per pass and per day."""
+
+    @model_validator(mode="after")
+    def _site_tables(self) -> Station:
+        check_terrain_mask(self.terrain_mask)
+        check_downlink(self.downlink)
+        return self
 
 
 class Window(CaseModel):
@@ -175,8 +188,12 @@ _EOP_BOUND = Field(ge=-1.0, le=1.0)
 
 
 class EarthOrientation(CaseModel):
-    """Earth orientation parameters at the epoch (IERS Bulletin A values), used when converting
-    between GCRF and ITRF. Zeros are the stated default, good to about 1 s of UT1 and 0.5" of pole.
+    """Earth orientation parameters (IERS values), used when converting between GCRF and ITRF.
+
+    ``source: "values"`` (the default) uses the three numbers below over the whole window;
+    zeros are the stated default, good to about 1 s of UT1 and 0.5" of pole. ``source: "iers"``
+    looks the values up epoch by epoch in the IERS table shipped by ``astropy-iers-data``, or
+    in the finals2000A-format ``file`` named; the three numbers are then left out.
     """
 
     dut1_s: Annotated[float, _EOP_BOUND] = 0.0
@@ -185,6 +202,30 @@ class EarthOrientation(CaseModel):
     """Polar motion x_p, arcsec."""
     yp_arcsec: Annotated[float, _EOP_BOUND] = 0.0
     """Polar motion y_p, arcsec."""
+    # New fields are left out of the canonical form at their defaults, so the fingerprints of
+    # cases written before them do not change.
+    source: Literal["values", "iers"] = Field("values", exclude_if=lambda v: v == "values")
+    """Where the values come from: "values" (the three numbers above) or "iers" (the table)."""
+    file: Annotated[str, Field(min_length=1, max_length=4096)] | None = Field(
+        None, exclude_if=lambda v: v is None
+    )
+    """With source "iers": an IERS finals2000A-format file to read instead of the packaged
+    table (a relative path is taken from the current folder)."""
+
+    @model_validator(mode="after")
+    def _one_source(self) -> EarthOrientation:
+        if self.source == "values":
+            if self.file is not None:
+                raise rule("file", self.file, 'a table file needs "source": "iers"')
+            return self
+        for name in ("dut1_s", "xp_arcsec", "yp_arcsec"):
+            if getattr(self, name) != 0.0:
+                raise rule(
+                    name,
+                    getattr(self, name),
+                    'is looked up in the IERS table with "source": "iers"; leave it out',
+                )
+        return self
 
 
 class ForceModel(CaseModel):

@@ -62,6 +62,7 @@ def case_trajectory(case: Any, progress: Callable[[float], None] | None = None):
 
 
 def _header(case: Any, traj: Any, kind: str) -> dict[str, Any]:
+    from ..analysis.earth_orientation import earth_orientation_summary
     from ..kernel.timescales import utc_iso
 
     return {
@@ -76,7 +77,7 @@ def _header(case: Any, traj: Any, kind: str) -> dict[str, Any]:
             "step_s": case.window.step_s,
         },
         "propagator": traj.propagator,
-        "earth_orientation": asdict(traj.eop),
+        "earth_orientation": earth_orientation_summary(case, traj.eop),
         "model_notes": list(traj.notes),
         "utc_tai_extrapolated": bool(traj.start.utc_tai_extrapolated),
         "caution": CAUTION,
@@ -85,21 +86,44 @@ def _header(case: Any, traj: Any, kind: str) -> dict[str, Any]:
 
 def passes_data(case: Any, progress: Callable[[float], None] | None = None) -> dict[str, Any]:
     """Every pass over the case's stations in its window, with daily statistics."""
+    from ..analysis.contacts import case_site_passes, has_downlink
     from ..analysis.inputs import case_stations
     from ..kernel.errors import InputError
-    from ..kernel.passes import station_passes
 
     if not case.stations:
         raise InputError("stations", [], "the case has no stations: add one to compute passes")
     stations = case_stations(case)
     with recorded_warnings() as notes:
         traj = case_trajectory(case, progress)
-        found = station_passes(traj, stations, case.window.duration_s, step_s=case.window.step_s)
+        sites = case_site_passes(case, traj)
+    found = sites.search
+    with_downlink = {s.name for s in case.stations if s.downlink}
     data = _header(case, traj, "passes")
     data.update(
-        stations=[asdict(s) for s in stations],
-        passes=[asdict(p) | {"duration_s": p.duration_s} for p in found.passes],
+        stations=[
+            asdict(k)
+            | s.model_dump(mode="json", include={"terrain_mask", "min_pass_duration_s", "downlink"})
+            for k, s in zip(stations, case.stations, strict=True)
+        ],
+        passes=[
+            asdict(p)
+            | {
+                "duration_s": p.duration_s,
+                "data_volume_mbit": v if p.station in with_downlink else None,
+            }
+            for p, v in zip(found.passes, sites.volumes_mbit, strict=True)
+        ],
         daily=[asdict(d) for d in found.daily],
+        data_volume=(
+            {
+                "daily": [asdict(d) for d in sites.daily_volume],
+                "unit": "Mbit",
+                "total_mbit": sum(sites.volumes_mbit),
+            }
+            if has_downlink(case)
+            else None
+        ),
+        passes_below_min_duration=sites.dropped_short,
         longest_gap_s=dict(found.longest_gap_s),
         search_step_s=found.search_step_s,
         tolerance_s=found.tolerance_s,

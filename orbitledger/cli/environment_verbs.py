@@ -20,6 +20,8 @@ from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from typing import Any
 
+from .window_options import add_window_options, case_with_options
+
 __all__ = ["register"]
 
 
@@ -62,6 +64,8 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         verb.add_argument("case", metavar="CASE", help="the case file (*.case.json)")
         what = "JSON" if flag == "--json" else "CSV"
         verb.add_argument(flag, action="store_true", help=f"print {what} instead of a table")
+        if name in ("passes", "eclipses"):
+            add_window_options(verb, min_elevation=name == "passes")
         if name == "eclipses":
             verb.add_argument(
                 "--cylindrical",
@@ -95,12 +99,16 @@ def _compute(
 
     case = load_case(args.case)
     try:
+        case = case_with_options(case, args)
         with _progress_bar(args.verb) as progress:
             data = fn(case, progress=progress, **kwargs)
     except InputError as err:
         if err.file is not None:
             raise
         raise InputError(err.field, err.value, err.reason, file=str(args.case)) from None
+    eop_caution = (data.get("earth_orientation") or {}).get("caution")
+    if eop_caution and "warnings" in data:
+        data["warnings"].append(eop_caution)
     for line in data.get("warnings", []):
         print(f"orbitledger {args.verb}: warning: {line}", file=sys.stderr)
     return data
@@ -123,6 +131,12 @@ def _preamble(data: dict[str, Any]) -> list[str]:
         f"window      {w['start_utc']} + {w['duration_s']:g} s, propagator {data['propagator']}",
     ]
     lines += [f"model       {note}" for note in data["model_notes"]]
+    eop = data.get("earth_orientation") or {}
+    if eop.get("source") == "iers":
+        lines.append(
+            f"EOP         {eop['table']}, observed to {eop['observed_until_utc']}; at the start "
+            f'dUT1 {eop["dut1_s"]:.4f} s, xp {eop["xp_arcsec"]:.4f}", yp {eop["yp_arcsec"]:.4f}"'
+        )
     if data["utc_tai_extrapolated"]:
         lines.append("time        UTC - TAI extrapolated beyond the leap-second table")
     return lines + [""]
@@ -150,6 +164,7 @@ def run_passes(args: argparse.Namespace) -> int:
             f"{p['los_azimuth_deg']:.1f}",
             f"{p['duration_s'] / 60.0:.2f}",
         ]
+        + ([_mbit(p["data_volume_mbit"])] if data["data_volume"] else [])
         for p in data["passes"]
     ]
     heads = [
@@ -161,7 +176,7 @@ def run_passes(args: argparse.Namespace) -> int:
         "LOS (UTC)",
         "az (deg)",
         "duration (min)",
-    ]
+    ] + (["data (Mbit)"] if data["data_volume"] else [])
     lines = _preamble(data) + _table(heads, rows) + [""]
     daily = [
         [
@@ -174,6 +189,7 @@ def run_passes(args: argparse.Namespace) -> int:
         for d in data["daily"]
     ]
     lines += _table(["station", "day (UTC)", "passes", "contact (min)", "longest gap (min)"], daily)
+    lines += _volume_lines(data)
     lines += [
         "",
         "longest gap in the window: "
@@ -187,6 +203,23 @@ def run_passes(args: argparse.Namespace) -> int:
     ]
     print("\n".join(lines))
     return 0
+
+
+def _mbit(value: float | None) -> str:
+    return "-" if value is None else f"{value:.0f}"
+
+
+def _volume_lines(data: dict[str, Any]) -> list[str]:
+    lines = []
+    if data["passes_below_min_duration"]:
+        lines += ["", f"{data['passes_below_min_duration']} passes shorter than their station's "
+                  "min_pass_duration_s left out"]  # fmt: skip
+    volume = data["data_volume"]
+    if volume:
+        rows = [[d["station"], d["day_utc"], str(d["passes"]), f"{d['volume_mbit']:.0f}"]
+                for d in volume["daily"]]  # fmt: skip
+        lines += [""] + _table(["station", "day (UTC)", "passes", "data (Mbit)"], rows)
+    return lines
 
 
 def run_eclipses(args: argparse.Namespace) -> int:

@@ -168,11 +168,14 @@ def tle_trajectory(
     return Trajectory(start, state_at, tle.period_s, "sgp4", eop, body, notes=tuple(notes))
 
 
-def case_tle_trajectory(case: Any, *, duration_s: float | None = None) -> Trajectory:
+def case_tle_trajectory(
+    case: Any, *, duration_s: float | None = None, eop: EarthOrientation | None = None
+) -> Trajectory:
     """The SGP4 trajectory of a case whose ``force_model.propagator`` is ``"sgp4"``.
 
     From its ``source`` TLE, over its analysis window (start ``case.window_start_utc``), with
-    its Earth orientation. ``analysis.case_trajectory`` calls this for SGP4 cases.
+    its Earth orientation (``eop``, default the case's stated values). ``analysis.case_trajectory``
+    calls this for SGP4 cases.
     """
     source = case.source
     if source is None or source.kind != "tle":
@@ -187,6 +190,6 @@ def case_tle_trajectory(case: Any, *, duration_s: float | None = None) -> Trajec
         tle,
         case.window_start_utc,
         duration_s=case.window.duration_s if duration_s is None else duration_s,
-        eop=EarthOrientation(eo.dut1_s, eo.xp_arcsec, eo.yp_arcsec),
+        eop=eop or EarthOrientation(eo.dut1_s, eo.xp_arcsec, eo.yp_arcsec),
         body=case.body_constants(),
     )

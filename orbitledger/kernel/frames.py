@@ -66,16 +66,17 @@ def _cip_xys(ts: TimeScales) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return on_time_grid(erfa.xys06a, ts.tt1, ts.tt2, _GRID_DAYS)  # type: ignore[return-value]
 
 
-def _pole_offsets_rad(xp_arcsec: float, yp_arcsec: float) -> tuple[float, float]:
+def _pole_offsets_rad(xp_arcsec: Any, yp_arcsec: Any) -> tuple[Any, Any]:
+    """Pole offsets (arcsec, a number or one per epoch) in rad."""
     for name, value in (("xp_arcsec", xp_arcsec), ("yp_arcsec", yp_arcsec)):
-        if not np.isfinite(value) or abs(value) > 2.0:
+        if not np.all(np.isfinite(value)) or np.any(np.abs(value) > 2.0):
             raise InputError(
                 f"earth_orientation.{name}", value, "must be a pole offset within 2 arcsec"
             )
-    return xp_arcsec * erfa.DAS2R, yp_arcsec * erfa.DAS2R
+    return np.asarray(xp_arcsec) * erfa.DAS2R, np.asarray(yp_arcsec) * erfa.DAS2R
 
 
-def _pole_matrix(ts: TimeScales, xp_arcsec: float, yp_arcsec: float) -> np.ndarray:
+def _pole_matrix(ts: TimeScales, xp_arcsec: ArrayLike, yp_arcsec: ArrayLike) -> np.ndarray:
     xp, yp = _pole_offsets_rad(xp_arcsec, yp_arcsec)
     return erfa.pom00(xp, yp, erfa.sp00(ts.tt1, ts.tt2))
 
@@ -90,14 +91,14 @@ def gmst_rad(ts: TimeScales) -> np.ndarray:
     return erfa.gmst06(ts.ut11, ts.ut12, ts.tt1, ts.tt2)
 
 
-def _parts(ts: TimeScales, xp_arcsec: float, yp_arcsec: float):
+def _parts(ts: TimeScales, xp_arcsec: ArrayLike, yp_arcsec: ArrayLike):
     c2i = erfa.c2ixys(*_cip_xys(ts))
     era = earth_rotation_angle_rad(ts)
     pom = _pole_matrix(ts, xp_arcsec, yp_arcsec)
     return c2i, np.asarray(era), pom
 
 
-def _rotation_parts(ts: TimeScales, xp_arcsec: float, yp_arcsec: float):
+def _rotation_parts(ts: TimeScales, xp_arcsec: ArrayLike, yp_arcsec: ArrayLike):
     """C (GCRS to CIRS), the angle of the rotation about the CIP and the polar-motion matrix
     W, or None for W when the pole offsets are zero.
 
@@ -107,7 +108,7 @@ def _rotation_parts(ts: TimeScales, xp_arcsec: float, yp_arcsec: float):
     (IERS Conventions 2010, Eq. 5.1), to rounding.
     """
     xp, yp = _pole_offsets_rad(xp_arcsec, yp_arcsec)
-    if xp != 0.0 or yp != 0.0:
+    if np.any(xp != 0.0) or np.any(yp != 0.0):
         return _parts(ts, xp_arcsec, yp_arcsec)
     c2i = erfa.c2ixys(*_cip_xys(ts))
     angle = np.asarray(earth_rotation_angle_rad(ts)) + erfa.sp00(ts.tt1, ts.tt2)
@@ -123,7 +124,7 @@ def _undo_pole(pom: np.ndarray | None, v: np.ndarray) -> np.ndarray:
 
 
 def celestial_to_terrestrial_matrix(
-    ts: TimeScales, xp_arcsec: float = 0.0, yp_arcsec: float = 0.0
+    ts: TimeScales, xp_arcsec: ArrayLike = 0.0, yp_arcsec: ArrayLike = 0.0
 ) -> np.ndarray:
     """GCRS-to-ITRS rotation matrices, shape ts.shape + (3, 3) (ERFA c2tcio; IERS TN36 Eq. 5.1)."""
     c2i, era, pom = _parts(ts, xp_arcsec, yp_arcsec)
@@ -163,14 +164,15 @@ def gcrf_to_itrf_state(
     epoch_utc: EpochLike,
     *,
     dut1_s: float = 0.0,
-    xp_arcsec: float = 0.0,
-    yp_arcsec: float = 0.0,
+    xp_arcsec: ArrayLike = 0.0,
+    yp_arcsec: ArrayLike = 0.0,
 ) -> tuple[np.ndarray, np.ndarray | None]:
     """GCRF position (and velocity) to ITRF: r_km (..., 3), v_km_s (..., 3) or None.
 
     ``epoch_utc`` is anything ``timescales.parse_utc`` takes, or a ``TimeScales`` (whose own
-    dUT1 is then used); its shape broadcasts against r_km[..., 0]. Velocity in the rotating
-    frame: v_ITRF = W [R3(theta) C v - omega x (R3(theta) C r)].
+    dUT1 is then used); its shape broadcasts against r_km[..., 0], as do the pole coordinates
+    (arcsec: one pair, or one per epoch). Velocity in the rotating frame:
+    v_ITRF = W [R3(theta) C v - omega x (R3(theta) C r)].
     """
     r = _vectors(r_km, "r_km")
     c2i, era, pom = _rotation_parts(_scales(epoch_utc, dut1_s), xp_arcsec, yp_arcsec)
@@ -191,8 +193,8 @@ def itrf_to_gcrf_state(
     epoch_utc: EpochLike,
     *,
     dut1_s: float = 0.0,
-    xp_arcsec: float = 0.0,
-    yp_arcsec: float = 0.0,
+    xp_arcsec: ArrayLike = 0.0,
+    yp_arcsec: ArrayLike = 0.0,
 ) -> tuple[np.ndarray, np.ndarray | None]:
     """ITRF position (and velocity) to GCRF, the inverse of ``gcrf_to_itrf_state``.
 
@@ -215,8 +217,8 @@ def gcrf_to_itrf(
     epoch_utc: EpochLike,
     *,
     dut1_s: float = 0.0,
-    xp_arcsec: float = 0.0,
-    yp_arcsec: float = 0.0,
+    xp_arcsec: ArrayLike = 0.0,
+    yp_arcsec: ArrayLike = 0.0,
 ) -> np.ndarray:
     """GCRF position, km (..., 3), to ITRF at ``epoch_utc`` (ISO string, datetime or many).
 
@@ -234,8 +236,8 @@ def itrf_to_gcrf(
     epoch_utc: EpochLike,
     *,
     dut1_s: float = 0.0,
-    xp_arcsec: float = 0.0,
-    yp_arcsec: float = 0.0,
+    xp_arcsec: ArrayLike = 0.0,
+    yp_arcsec: ArrayLike = 0.0,
 ) -> np.ndarray:
     """ITRF position, km (..., 3), to GCRF at ``epoch_utc``; the inverse of ``gcrf_to_itrf``."""
     r, _ = itrf_to_gcrf_state(

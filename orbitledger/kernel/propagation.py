@@ -19,6 +19,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from .constants import EARTH, Body
+from .earth_orientation import EopTable, eop_at, time_scales_with_table
 from .elements import Elements, elements_to_state
 from .errors import InputError
 from .frames import gcrf_to_itrf_state
@@ -39,11 +40,23 @@ StateFunction = Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]]
 
 @dataclass(frozen=True)
 class EarthOrientation:
-    """UT1 - UTC (s) and the pole coordinates (arcsec), IERS Bulletin A values."""
+    """UT1 - UTC (s) and the pole coordinates (arcsec), IERS Bulletin A values.
+
+    With a ``table`` (``earth_orientation.EopTable``) the values are looked up epoch by epoch
+    and the three numbers are those at the window's start, for statements and summaries.
+    """
 
     dut1_s: float = 0.0
     xp_arcsec: float = 0.0
     yp_arcsec: float = 0.0
+    table: EopTable | None = None
+
+    def pole_arcsec(self, ts: TimeScales) -> tuple[Any, Any]:
+        """x_p, y_p (arcsec) at the epochs of ``ts``: per epoch from the table, else constant."""
+        if self.table is None:
+            return self.xp_arcsec, self.yp_arcsec
+        _, xp, yp, _ = eop_at(self.table, ts.utc1, ts.utc2)
+        return xp, yp
 
 
 @dataclass(frozen=True, eq=False)
@@ -66,6 +79,8 @@ class Trajectory:
 
     def times(self, offset_s: ArrayLike) -> TimeScales:
         """UTC/TAI/TT/UT1 of the epochs ``offset_s`` SI seconds after the start."""
+        if self.eop.table is not None:
+            return time_scales_with_table(self.start, offset_s, self.eop.table)
         return time_scales(self.start, offset_s=offset_s, dut1_s=self.eop.dut1_s)
 
     def gcrf(self, offset_s: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
@@ -80,13 +95,9 @@ class Trajectory:
         """ITRF position (and velocity if asked), km and km/s, at the offsets."""
         t = np.asarray(offset_s, dtype=float)
         r, v = self.gcrf(t)
-        return gcrf_to_itrf_state(
-            r,
-            v if velocity else None,
-            self.times(t),
-            xp_arcsec=self.eop.xp_arcsec,
-            yp_arcsec=self.eop.yp_arcsec,
-        )
+        ts = self.times(t)
+        xp, yp = self.eop.pole_arcsec(ts)
+        return gcrf_to_itrf_state(r, v if velocity else None, ts, xp_arcsec=xp, yp_arcsec=yp)
 
 
 def _seconds_between(later: TimeScales, earlier: TimeScales) -> float:

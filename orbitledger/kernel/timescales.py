@@ -64,7 +64,8 @@ class TimeScales:
 
     utc1, utc2: UTC as ERFA's quasi Julian date (days of 86 399, 86 400 or 86 401 s)
     tai1, tai2, tt1, tt2, ut11, ut12: TAI, TT and UT1 Julian dates
-    dut1_s: UT1 - UTC used, s
+    dut1_s: UT1 - UTC used, s (an array of one value per epoch when looked up in a table,
+    ``earth_orientation.time_scales_with_table``)
     utc_tai_extrapolated: True when any epoch lies beyond the leap-second table's validity
     """
 
@@ -76,7 +77,7 @@ class TimeScales:
     tt2: np.ndarray
     ut11: np.ndarray
     ut12: np.ndarray
-    dut1_s: float
+    dut1_s: float | np.ndarray
     utc_tai_extrapolated: bool
 
     @property
