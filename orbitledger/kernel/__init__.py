@@ -76,6 +76,7 @@ from .eclipses import (
     shadow_state,
     sunlit_fraction,
 )
+from .seasons import SeasonSeries, eclipse_seasons, mission_seasons
 
 # Orbit design and manoeuvres
 from .design import (
