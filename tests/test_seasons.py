@@ -152,3 +152,14 @@ def test_shadow_runs_by_hand():
     total, longest = _shadow_runs(depth, 1.0)
     assert total.tolist() == pytest.approx([5.0, 0.0, 10.0])
     assert longest.tolist() == pytest.approx([3.0, 0.0, 10.0])
+
+
+def test_days_in_chunks_give_the_same_series(monkeypatch):
+    from orbitledger.kernel import seasons
+
+    el = Elements(a_km=R_E + 800.0, e=0.01, i_deg=98.6, raan_deg=270.0, argp_deg=30.0, nu_deg=0.0)
+    whole = mission_seasons(el, START, 60.0)
+    monkeypatch.setattr(seasons, "_CHUNK_SAMPLES", 7 * 720)  # 7 days a chunk, 61 days
+    chunked = mission_seasons(el, START, 60.0)
+    assert np.array_equal(whole.shadow_fraction, chunked.shadow_fraction)
+    assert np.array_equal(whole.max_shadow_s, chunked.max_shadow_s)

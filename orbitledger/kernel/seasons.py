@@ -43,6 +43,7 @@ from .timescales import EpochLike, TimeScales, time_scales, utc_iso
 __all__ = ["SeasonSeries", "eclipse_seasons", "mission_seasons"]
 
 _DAY_S = 86_400.0
+_CHUNK_SAMPLES = 1_300_000  # samples (days x samples per orbit) computed at once
 
 
 @dataclass(frozen=True, eq=False)
@@ -176,21 +177,27 @@ def mission_seasons(
     dt = period / n
     # Each day's orbit: the ellipse of that day (RAAN and argument of perigee of the day's
     # sample time, held), gone round once in mean anomaly over the nodal period.
-    t_day = offset0 + days[:, None]
-    m0 = true_to_mean_anomaly(math.radians(float(np.asarray(elements.nu_deg))), e)
-    mean_anomaly = m0 + m_rate * t_day + (2.0 * math.pi / n) * np.arange(n)[None, :]
-    r = _positions_km(
-        a,
-        e,
-        math.radians(float(np.asarray(elements.i_deg))),
-        math.radians(float(np.asarray(elements.raan_deg))) + raan_rate * t_day,
-        math.radians(float(np.asarray(elements.argp_deg))) + argp_rate * t_day,
-        mean_to_true_anomaly(mean_anomaly, e),
-    )
     ts = _times(start, days, eop)
     sun = sun_position_from_tt_km(ts.tt1, ts.tt2)
-    depth = _depths(r, sun[:, None, :], body, model, 0)
-    shadow_s, longest_s = _shadow_runs(depth, dt)
+    m0 = true_to_mean_anomaly(math.radians(float(np.asarray(elements.nu_deg))), e)
+    shadow_s, longest_s = np.zeros(days.size), np.zeros(days.size)
+    # In chunks of days, so that a long mission at a fine step keeps its memory bounded
+    # (about 30 MB per array of a chunk at 720 samples per orbit).
+    chunk = max(1, _CHUNK_SAMPLES // n)
+    for lo in range(0, days.size, chunk):
+        hi = min(days.size, lo + chunk)
+        t_day = offset0 + days[lo:hi, None]
+        mean_anomaly = m0 + m_rate * t_day + (2.0 * math.pi / n) * np.arange(n)[None, :]
+        r = _positions_km(
+            a,
+            e,
+            math.radians(float(np.asarray(elements.i_deg))),
+            math.radians(float(np.asarray(elements.raan_deg))) + raan_rate * t_day,
+            math.radians(float(np.asarray(elements.argp_deg))) + argp_rate * t_day,
+            mean_to_true_anomaly(mean_anomaly, e),
+        )
+        depth = _depths(r, sun[lo:hi, None, :], body, model, 0)
+        shadow_s[lo:hi], longest_s[lo:hi] = _shadow_runs(depth, dt)
     raan = (float(np.asarray(elements.raan_deg)) + np.degrees(raan_rate * (offset0 + days))) % 360.0
     # The normal of the mean plane (not r x v, which carries the plane's own turning).
     inc, node_rad = math.radians(float(np.asarray(elements.i_deg))), np.radians(raan)
