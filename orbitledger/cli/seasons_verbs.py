@@ -155,15 +155,15 @@ def run_seasons(args: argparse.Namespace) -> int:
     lines = [
         f"case        {case.meta.title} ({case.meta.record_id})",
         f"span        {series.day_utc[0]} to {series.day_utc[-1]} ({s['days']} orbits, one every "
-        f"{args.step_days:g} day), {series.model} shadow",
+        f"{args.step_days:g} day{'' if args.step_days == 1 else 's'}), {series.model} shadow",
     ]
     lines += [f"model       {note}" for note in series.notes]
     lines += [
         "",
         f"beta angle  {s['beta_min_deg']:.2f} to {s['beta_max_deg']:.2f} deg",
         f"shadow      longest {s['max_shadow_s'] / 60.0:.2f} min; up to {100 * s['max_shadow_fraction']:.1f} % "
-        f"of an orbit (mean {100 * s['mean_shadow_fraction']:.1f} %); {s['days_with_shadow']} days with "
-        f"shadow, {s['days_without_shadow']} without",
+        f"of an orbit (mean {100 * s['mean_shadow_fraction']:.1f} %); {s['days_with_shadow']} of the "
+        f"{s['days']} orbits sampled with shadow",
         f"LTAN        {_clock(s['ltan_h_start'])} at the start, {_clock(s['ltan_h_end'])} at the end "
         f"(mean solar time); drift {_rate(s['ltan_drift_h_per_year'])} "
         f"(J2 rate minus the Sun's mean motion: {_rate(s['ltan_drift_h_per_year_j2_formula'])})",
@@ -178,7 +178,14 @@ def run_seasons(args: argparse.Namespace) -> int:
         ["eclipse season from", "to", "orbits sampled", "longest shadow (min)"], seasons
     )
     lines += [""] + _table(
-        ["month", "beta (deg)", "longest shadow (min)", "max shadow (%)", "days in shadow", "LTAN"],
+        [
+            "month",
+            "beta (deg)",
+            "longest shadow (min)",
+            "max shadow (%)",
+            "orbits with shadow",
+            "LTAN",
+        ],
         _monthly(series),
     )
     lines += ["", "* = cut at the span's edge", "", f"Caution: {CAUTION}"]

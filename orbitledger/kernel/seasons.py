@@ -224,7 +224,7 @@ def mission_seasons(
         f"J2 mean elements (a {a:.3f} km, e {e:.5f}, i {float(np.asarray(elements.i_deg)):.4f} "
         "deg fixed; RAAN, argument of perigee and mean anomaly at the secular J2 rates); no drag "
         "decay, no lunisolar drift of the inclination",
-        f"{model} shadow, one orbit every {step_days:g} day sampled at {n} points, crossings "
+        f"{model} shadow, one orbit every {step_days:g} day{'' if step_days == 1 else 's'} sampled at {n} points, crossings "
         "interpolated; Sun from ERFA epv00 (geometric)",
     )
     return SeasonSeries(
