@@ -14,6 +14,7 @@ from .inertial import inertial_data, inertial_figure, project, reproject
 from .mapping import split_at_antimeridian, visibility_central_angle_deg
 from .orbit_plane import orbit_plane_data, orbit_plane_figure
 from .palette import DARK, LIGHT, OKABE_ITO, Palette, palette_for, sequential
+from .seasons import beta_history_data, beta_history_figure, node_time_data, node_time_figure
 from .show import FIGURE_MIME_TYPE, ensure_notebook_bokehjs, forget_figures, show, shown_figures
 from .sources import sources_of, update_figure
 from .timeseries import (
@@ -34,6 +35,8 @@ __all__ = [
     "Palette",
     "altitude_speed_data",
     "altitude_speed_figure",
+    "beta_history_data",
+    "beta_history_figure",
     "budget_data",
     "budget_figure",
     "contact_timeline_data",
@@ -48,6 +51,8 @@ __all__ = [
     "ground_track_figure",
     "inertial_data",
     "inertial_figure",
+    "node_time_data",
+    "node_time_figure",
     "orbit_plane_data",
     "orbit_plane_figure",
     "palette_for",

@@ -85,6 +85,7 @@ _PUBLIC: dict[str, tuple[str, ...]] = {
         "shadow_state",
         "sunlit_fraction",
     ),
+    "seasons": ("SeasonSeries", "eclipse_seasons", "mission_seasons"),
     # Orbit design and manoeuvres
     "design": (
         "CRITICAL_INCLINATION_DEG",
