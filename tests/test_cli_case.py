@@ -237,5 +237,7 @@ def test_the_installed_command_prints_one_line_and_no_traceback(tmp_path):
         check=False,
     )
     assert done.returncode == 2 and done.stdout == ""
-    assert done.stderr == f"orbitledger summary: {path}: orbit.e = -1.0: must be >= 0.0\n"
+    assert done.stderr == (
+        f"orbitledger summary: {path}: orbit.e = -1.0: must be >= 0 (the allowed range is [0, 1000])\n"
+    )
     assert path.read_bytes() == before

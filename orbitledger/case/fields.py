@@ -29,6 +29,13 @@ __all__ = [
     "UtcText",
     "Name",
     "normalise_angle_deg",
+    "ranged",
+    "Length",
+    "PositiveLength",
+    "Speed",
+    "DeltaV",
+    "Mass",
+    "MAX_LIST_ITEMS",
 ]
 
 
@@ -71,6 +78,46 @@ def _normalise_longitude_deg(value: float) -> float:
     wrapped = 180.0 - ((180.0 - value) % 360.0)
     return wrapped + 360.0 if wrapped <= -180.0 else wrapped + 0.0
 
+
+def _number(x: float) -> str:
+    return f"{x:g}"
+
+
+def ranged(low: float, high: float, unit: str, *, low_open: bool = False) -> Any:
+    """A float within its physical range, [low, high] (``low_open``: (low, high]).
+
+    A value outside is refused naming the bound and the range ("must be <= 1e+06 (the allowed
+    range is (0, 1e+06] kg)"): numbers that large are not orbits (a 1e308 altitude, a 1e300 kg
+    spacecraft) and would overflow the kernel. The range is written into the JSON Schema too.
+    """
+    shown = f"{'(' if low_open else '['}{_number(low)}, {_number(high)}]" + (
+        f" {unit}" if unit else ""
+    )
+
+    def check(value: float) -> float:
+        if value < low or (low_open and value == low):
+            sign = ">" if low_open else ">="
+            raise ValueError(f"must be {sign} {_number(low)} (the allowed range is {shown})")
+        if value > high:
+            raise ValueError(f"must be <= {_number(high)} (the allowed range is {shown})")
+        return value
+
+    bounds = {"exclusiveMinimum" if low_open else "minimum": low, "maximum": high}
+    return Annotated[float, AfterValidator(check), Field(json_schema_extra=bounds)]
+
+
+# Physical ranges (docs/case-file.md, "Input limits"). Lengths reach beyond Pluto's orbit
+# (5.9e9 km) for a heliocentric case; speeds beyond solar escape at the Sun's surface
+# (617.6 km/s, NASA Sun fact sheet).
+MAX_LENGTH_KM = 1e10
+MAX_LIST_ITEMS = 1000
+"""Stations, burns, allowances: more than any study keeps in one case."""
+Length = ranged(-MAX_LENGTH_KM, MAX_LENGTH_KM, "km")
+PositiveLength = ranged(0.0, MAX_LENGTH_KM, "km", low_open=True)
+Speed = ranged(-1e3, 1e3, "km/s")
+DeltaV = ranged(-100.0, 100.0, "km/s")
+Mass = ranged(0.0, 1e6, "kg", low_open=True)
+"""A spacecraft's mass: up to 1000 t (the International Space Station is about 420 t, NASA)."""
 
 Finite = float
 Positive = Annotated[float, Field(gt=0.0)]

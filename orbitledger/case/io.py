@@ -16,6 +16,7 @@ from pathlib import Path
 from typing import Any
 
 from .. import study
+from ..limits import MAX_CASE_FILE_BYTES, read_input_bytes
 from .errors import MISSING, CaseError, CaseFileChanged, CaseFileNotFound
 from .model import Case, case_from_data
 from .validation import read_json_text
@@ -37,14 +38,15 @@ def parse_case(text: str | bytes, file: str | os.PathLike | None = None) -> Case
 
 
 def _read_bytes(path: Path) -> bytes:
+    """The case file's bytes: a regular file of at most ``MAX_CASE_FILE_BYTES`` (limits)."""
+
+    def refuse(reason: str) -> CaseError:
+        return CaseError("", MISSING, reason, file=str(path))
+
     try:
-        return path.read_bytes()
+        return read_input_bytes(path, MAX_CASE_FILE_BYTES, refuse, "a case file")
     except FileNotFoundError:
         raise CaseFileNotFound("", MISSING, "no such case file", file=str(path)) from None
-    except IsADirectoryError:
-        raise CaseError("", MISSING, "is a folder, not a case file", file=str(path)) from None
-    except OSError as err:
-        raise CaseError("", MISSING, f"cannot be read: {err.strerror}", file=str(path)) from None
 
 
 def load_case(path: str | os.PathLike) -> Case:
@@ -189,8 +191,8 @@ class CaseFile:
     def changed_on_disk(self) -> bool:
         """True when the file's bytes differ from what was last loaded or saved (or it is gone)."""
         try:
-            return hashlib.sha256(self._path.read_bytes()).hexdigest() != self._disk_sha256
-        except OSError:
+            return hashlib.sha256(_read_bytes(self._path)).hexdigest() != self._disk_sha256
+        except CaseError:
             return True
 
     def save(self, case: Case | None = None, *, force: bool = False) -> Case:

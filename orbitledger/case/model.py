@@ -15,8 +15,9 @@ from ..kernel.summary import orbit_cautions
 from .canonical import canonical_json, fingerprint_of, pretty_json
 from .changes import apply_changes
 from .errors import MISSING, CaseError
-from .fields import CaseModel, UtcText, rule
+from .fields import MAX_LIST_ITEMS, CaseModel, UtcText, rule
 from .forms import check_orbit_paths, orbit_elements, orbit_in_form, orbit_state
+from .json_limits import find_long_integer, long_integer_error
 from .orbit import ApsidesOrbit, ClassicalOrbit, Orbit
 from .plan import AtEpoch, Budget, Burn
 from .sections import BodySection, EarthOrientation, ForceModel, Meta, Spacecraft, Station, Window
@@ -55,11 +56,11 @@ class Case(CaseModel):
     body: BodySection = Field(default_factory=BodySection)
     orbit: Orbit
     spacecraft: Spacecraft | None = None
-    stations: list[Station] = Field(default_factory=list)
+    stations: list[Station] = Field(default_factory=list, max_length=MAX_LIST_ITEMS)
     window: Window = Field(default_factory=Window)
     earth_orientation: EarthOrientation = Field(default_factory=EarthOrientation)
     force_model: ForceModel = Field(default_factory=ForceModel)
-    burns: list[Burn] = Field(default_factory=list)
+    burns: list[Burn] = Field(default_factory=list, max_length=MAX_LIST_ITEMS)
     budget: Budget | None = None
     source: Source | None = None
     criteria: list[str] = Field(default_factory=list)
@@ -248,11 +249,15 @@ def case_from_data(data: Any, *, file: str | None = None) -> Case:
         except ValueError as err:
             raise CaseError("schema", data["schema"], str(err), file=file) from None
     try:
-        return Case.model_validate(data)
+        case = Case.model_validate(data)
     except ValidationError as err:
         raise case_error_from_validation(err, Case, file) from None
     except (OverflowError, RecursionError) as err:
         raise CaseError("(top level)", "", f"cannot be read: {err}", file=file) from None
+    long_integer = find_long_integer(data)  # in a field without a range (an angle)
+    if long_integer:
+        raise long_integer_error(long_integer, file)
+    return case
 
 
 def case_json_schema() -> dict:

@@ -21,7 +21,16 @@ from typing import Annotated, Literal
 from pydantic import Field, model_validator
 
 from ..kernel.errors import InputError
-from .fields import Angle, CaseModel, Inclination, NonNegative, Vector3, normalise_angle_deg, rule
+from .fields import (
+    Angle,
+    CaseModel,
+    Inclination,
+    Length,
+    Speed,
+    normalise_angle_deg,
+    ranged,
+    rule,
+)
 
 __all__ = ["ClassicalOrbit", "ApsidesOrbit", "CartesianOrbit", "Orbit", "ORBIT_FORMS"]
 
@@ -41,12 +50,12 @@ class ClassicalOrbit(CaseModel):
     """Classical (Keplerian) osculating elements at the epoch, in the GCRF."""
 
     form: Literal["classical"]
-    a_km: float | None = None
+    a_km: Length | None = None
     """Semi-major axis, km (negative for a hyperbolic orbit). Give this or altitude_km."""
-    altitude_km: float | None = None
+    altitude_km: Length | None = None
     """Semi-major axis minus the body's equatorial radius, km (elliptic orbits)."""
-    e: NonNegative
-    """Eccentricity."""
+    e: ranged(0.0, 1e3, "")
+    """Eccentricity (hyperbolic orbits up to 1000)."""
     i_deg: Inclination
     """Inclination to the GCRF equator, deg in [0, 180]."""
     raan_deg: Angle
@@ -55,7 +64,7 @@ class ClassicalOrbit(CaseModel):
     """Argument of periapsis, deg (normalised to [0, 360))."""
     nu_deg: Angle | None = None
     """True anomaly at the epoch, deg. Give this or mean_anomaly_deg."""
-    mean_anomaly_deg: float | None = None
+    mean_anomaly_deg: ranged(-1e9, 1e9, "deg") | None = None
     """Mean anomaly at the epoch, deg (elliptic: normalised to [0, 360))."""
 
     @model_validator(mode="after")
@@ -106,9 +115,9 @@ class ApsidesOrbit(CaseModel):
     """An elliptic orbit by its periapsis and apoapsis altitudes, with the classical angles."""
 
     form: Literal["apsides"]
-    periapsis_alt_km: float
+    periapsis_alt_km: Length
     """Periapsis radius minus the body's equatorial radius, km."""
-    apoapsis_alt_km: float
+    apoapsis_alt_km: Length
     """Apoapsis radius minus the body's equatorial radius, km (>= periapsis_alt_km)."""
     i_deg: Inclination
     raan_deg: Angle
@@ -133,9 +142,9 @@ class CartesianOrbit(CaseModel):
 
     form: Literal["cartesian"]
     frame: Literal["GCRF"] = "GCRF"
-    r_km: Vector3
+    r_km: Annotated[list[Length], Field(min_length=3, max_length=3)]
     """Position [x, y, z], km."""
-    v_km_s: Vector3
+    v_km_s: Annotated[list[Speed], Field(min_length=3, max_length=3)]
     """Velocity [vx, vy, vz], km/s."""
 
     @model_validator(mode="after")

@@ -15,7 +15,17 @@ from typing import Annotated, Any, Literal
 from pydantic import Discriminator, Field, Tag, model_validator
 
 from ..kernel.errors import InputError
-from .fields import CaseModel, Inclination, Name, NonNegative, Positive, UtcText, Vector3, rule
+from .fields import (
+    MAX_LIST_ITEMS,
+    CaseModel,
+    DeltaV,
+    Inclination,
+    Name,
+    PositiveLength,
+    UtcText,
+    ranged,
+    rule,
+)
 
 __all__ = [
     "AtEpoch",
@@ -78,7 +88,7 @@ class CircularTransfer(CaseModel):
     """To a circular orbit at ``altitude_km`` above the equatorial radius."""
 
     kind: Literal["circular"]
-    altitude_km: Positive
+    altitude_km: PositiveLength
 
 
 class InclinationTransfer(CaseModel):
@@ -96,7 +106,7 @@ class Burn(CaseModel):
 
     name: Name
     at: BurnAt
-    dv_rtn_km_s: Vector3 | None = None
+    dv_rtn_km_s: Annotated[list[DeltaV], Field(min_length=3, max_length=3)] | None = None
     """Impulse in the local radial / transverse / normal frame, km/s."""
     transfer: Transfer | None = None
 
@@ -113,7 +123,7 @@ class Allowance(CaseModel):
     """A fixed line of the delta-v budget."""
 
     name: Name
-    dv_km_s: NonNegative
+    dv_km_s: ranged(0.0, 100.0, "km/s")
     per_year: bool = False
     """The line recurs every year of the mission."""
     margin: bool = False
@@ -123,19 +133,19 @@ class Allowance(CaseModel):
 class Disposal(CaseModel):
     """End-of-life disposal inputs: the lifetime limit and where re-entry is taken to start."""
 
-    lifetime_limit_years: Positive
+    lifetime_limit_years: ranged(0.0, 1000.0, "years", low_open=True)
     """Longest allowed orbital lifetime after the end of the mission, years."""
-    reentry_altitude_km: Positive = 120.0
+    reentry_altitude_km: ranged(0.0, 1000.0, "km", low_open=True) = 120.0
     """Altitude taken as re-entry, km (120 km is the usual interface, common practice)."""
 
 
 class Budget(CaseModel):
     """Delta-v budget inputs."""
 
-    mission_years: Positive
+    mission_years: ranged(0.0, 100.0, "years", low_open=True)
     margin_percent: Annotated[float, Field(ge=0.0, le=200.0)] = 0.0
     """Margin added to every computed line, percent."""
-    allowances: list[Allowance] = Field(default_factory=list)
+    allowances: list[Allowance] = Field(default_factory=list, max_length=MAX_LIST_ITEMS)
     station_keeping: bool = False
     """Drag make-up per year from the drag model (needs the spacecraft's drag inputs)."""
     disposal: Disposal | None = None

@@ -15,13 +15,14 @@ from pydantic import AfterValidator, Field, model_validator
 
 from ..kernel.constants import BODIES, Body
 from .fields import (
+    MAX_LIST_ITEMS,
     CaseModel,
     Latitude,
     Longitude,
+    Mass,
     Name,
-    NonNegative,
-    Positive,
     UtcText,
+    ranged,
     rule,
 )
 from .sites import DownlinkRate, TerrainPoint, check_downlink, check_terrain_mask, unless_default
@@ -59,7 +60,7 @@ class Meta(CaseModel):
     decision: str = ""
     """The decision this case supports."""
     rationale: str = ""
-    alternatives: list[str] = Field(default_factory=list)
+    alternatives: list[str] = Field(default_factory=list, max_length=MAX_LIST_ITEMS)
 
 
 # The constants of a Body that a case may override, each with its source.
@@ -78,13 +79,13 @@ class BodySection(CaseModel):
     """The central body: a known body with its cited constants, optionally overridden."""
 
     name: Literal["Earth", "Moon", "Mars", "Sun"] = "Earth"
-    mu_km3_s2: Positive | None = None
-    radius_km: Positive | None = None
+    mu_km3_s2: ranged(0.0, 1e12, "km^3/s^2", low_open=True) | None = None
+    radius_km: ranged(0.0, 1e6, "km", low_open=True) | None = None
     flattening: Annotated[float, Field(ge=0.0, lt=1.0)] | None = None
-    j2: float | None = None
-    j3: float | None = None
-    j4: float | None = None
-    rotation_rate_rad_s: float | None = None
+    j2: ranged(-1.0, 1.0, "") | None = None
+    j3: ranged(-1.0, 1.0, "") | None = None
+    j4: ranged(-1.0, 1.0, "") | None = None
+    rotation_rate_rad_s: ranged(-1e-2, 1e-2, "rad/s") | None = None
     sources: dict[str, Name] = Field(default_factory=dict)
     """The publication of each overridden constant, e.g. {"j2": "JGM-3 (Tapley et al. 1996)"}."""
 
@@ -121,15 +122,15 @@ class Spacecraft(CaseModel):
     """The spacecraft's mass and drag properties, and its propulsion if it has any."""
 
     name: str = ""
-    mass_kg: Positive
+    mass_kg: Mass
     """Wet mass at the epoch (propellant included), kg."""
-    drag_area_m2: Positive
+    drag_area_m2: ranged(0.0, 1e4, "m^2", low_open=True)
     """Mean cross-section area facing the flow, m^2."""
-    drag_coefficient: Positive
+    drag_coefficient: ranged(0.0, 10.0, "", low_open=True)
     """Drag coefficient C_D (dimensionless; about 2.2 for a compact satellite, common practice)."""
-    isp_s: Positive | None = None
+    isp_s: ranged(0.0, 1e5, "s", low_open=True) | None = None
     """Specific impulse of the propulsion, s (omit when the spacecraft has none)."""
-    propellant_mass_kg: NonNegative | None = None
+    propellant_mass_kg: ranged(0.0, 1e6, "kg") | None = None
     """Propellant on board at the epoch, kg (part of mass_kg)."""
 
     @model_validator(mode="after")
@@ -174,8 +175,8 @@ class Window(CaseModel):
 
     start_utc: UtcText | None = None
     """Start of the window (UTC); null means the case epoch."""
-    duration_s: Positive = 86400.0
-    step_s: Positive = 10.0
+    duration_s: ranged(0.0, 3.2e9, "s (about 100 years)", low_open=True) = 86400.0
+    step_s: ranged(1e-3, 3.2e9, "s") = 10.0
 
     @model_validator(mode="after")
     def _step_within_duration(self) -> Window:
@@ -242,7 +243,7 @@ class ForceModel(CaseModel):
     """Numerical: third-body attraction of the Sun and/or the Moon."""
     rtol: Annotated[float, Field(ge=1e-14, le=1e-3)] = 1e-10
     """Numerical integrator relative tolerance."""
-    atol_km: Positive = 1e-6
+    atol_km: ranged(0.0, 10.0, "km", low_open=True) = 1e-6
     """Numerical integrator absolute tolerance on position, km."""
 
     @model_validator(mode="after")

@@ -19,6 +19,7 @@ from typing import Any, Union
 from pydantic import BaseModel, ValidationError
 
 from .errors import MISSING, CaseError
+from .json_limits import check_depth, parse_int
 
 __all__ = ["read_json_text", "case_error_from_validation", "format_path", "check_text_values"]
 
@@ -131,8 +132,9 @@ def read_json_text(text: str | bytes, file: str | None = None) -> Any:
                 f"not UTF-8 text (byte {err.start}): a case file is UTF-8 JSON",
                 file=file,
             ) from None
+    check_depth(text, file)
     try:
-        data = json.loads(text, object_pairs_hook=_pairs_hook)
+        data = json.loads(text, object_pairs_hook=_pairs_hook, parse_int=parse_int)
     except json.JSONDecodeError as err:
         raise CaseError(
             "",
@@ -315,6 +317,8 @@ def _plain_reason(error: dict, current: Any) -> str:
         low, high = ctx.get("min_length"), ctx.get("max_length")
         count = low if low is not None else high
         actual = ctx.get("actual_length")
+        if kind == "too_long" and low is None:
+            return f"must have at most {high} items (has {actual})"
         return (
             f"must have {count} items (has {actual})"
             if low == high or high is None
