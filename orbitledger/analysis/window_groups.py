@@ -24,11 +24,11 @@ def _closed_orbit(case: Any) -> bool:
 def eclipse_results(case: Any) -> list[Result]:
     if not _closed_orbit(case):
         return []
-    from ..kernel.eclipses import find_eclipses, node_local_times_h
+    from ..kernel.eclipses import find_eclipses, node_local_times_h, whole_orbits
 
     traj = case_trajectory(case)
     search = find_eclipses(traj, case.window.duration_s)
-    orbits = [o for o in search.per_orbit if o.end_s - o.start_s >= 0.999 * traj.period_s]
+    orbits = whole_orbits(search, traj.period_s)
     rows = [
         Result(
             "eclipses_in_window",
@@ -61,7 +61,7 @@ def eclipse_results(case: Any) -> list[Result]:
                 "eclipse_fraction_max",
                 float(max(o.fraction for o in orbits)),
                 "",
-                "Largest fraction of an orbit in shadow",
+                "Largest fraction of an orbit in shadow (whole orbits of the window)",
                 "eclipses",
                 abs_tol=1e-4,
             ),

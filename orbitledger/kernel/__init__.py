@@ -75,6 +75,7 @@ from .eclipses import (
     node_local_times_h,
     shadow_state,
     sunlit_fraction,
+    whole_orbits,
 )
 
 # Orbit design and manoeuvres
