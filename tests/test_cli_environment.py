@@ -239,3 +239,31 @@ def test_eclipse_summary_is_over_whole_orbits_and_agrees_with_the_record(
     assert code == 0 and json.loads(out)["summary"]["mean_fraction"] is None
     code, out, _ = _run(capsys, "eclipses", str(short))
     assert code == 0 and "no whole orbit in the window" in out
+
+
+def test_any_station_in_the_cli_and_the_record_follow_one_rule(tmp_path: Path, capsys) -> None:
+    from orbitledger.analysis.window_groups import contact_results
+    from orbitledger.case.io import load_case
+
+    path = _case(tmp_path)
+    code, out, _ = _run(capsys, "passes", str(path), "--json")
+    assert code == 0
+    data = json.loads(out)
+    passes = data["passes"]
+    # By hand from the listed passes: passes added over stations; contact time the length of
+    # the union of [AOS, LOS] intervals (overlaps counted once).
+    union, end = 0.0, -math.inf
+    for aos, los in sorted((p["aos_s"], p["los_s"]) for p in passes):
+        union += max(0.0, los - max(aos, end))
+        end = max(end, los)
+    network = [d for d in data["daily"] if d["station"] == "any station"]
+    assert sum(d["passes"] for d in network) == len(passes)
+    assert sum(d["contact_min"] for d in network) == pytest.approx(union / 60.0, abs=1e-6)
+    days = 21600.0 / 86400.0
+    record = {r.name: r for r in contact_results(load_case(path))}
+    assert record["passes_in_window"].value == len(passes)
+    assert record["contact_min_per_day"].value == pytest.approx(union / 60.0 / days, abs=1e-6)
+    assert "added" in record["passes_in_window"].description
+    assert "counted once" in record["contact_min_per_day"].description
+    code, out, _ = _run(capsys, "passes", str(path))
+    assert code == 0 and "overlaps counted once" in out

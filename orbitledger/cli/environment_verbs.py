@@ -175,6 +175,8 @@ def run_passes(args: argparse.Namespace) -> int:
     ]
     lines += _table(["station", "day (UTC)", "passes", "contact (min)", "longest gap (min)"], daily)
     lines += [
+        "any station: passes are every station's added (a pass seen by two stations counts "
+        "twice); contact is the time with at least one station (overlaps counted once)",
         "",
         "longest gap in the window: "
         + ", ".join(f"{k} {v / 3600:.2f} h" for k, v in data["longest_gap_s"].items()),
