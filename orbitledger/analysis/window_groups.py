@@ -181,7 +181,8 @@ def lifetime_results(case: Any) -> list[Result]:
             "lifetime_years",
             float(life.years),
             "yr",
-            f"Orbital lifetime to {reentry:g} km under drag ({life.method}, "
+            f"Orbital lifetime until the perigee is {reentry:g} km above the ellipsoid "
+            f"(at the orbit's mean latitude) under drag ({life.method}, "
             f"{life.solar_activity} solar activity)",
             "lifetime",
             rel_tol=1e-6,
@@ -255,7 +256,8 @@ def budget_results(case: Any) -> list[Result]:
                 "disposal_perigee_alt_km",
                 d.perigee_altitude_km,
                 "km",
-                f"Perigee after the disposal burn: lifetime under {d.lifetime_limit_years:g} yr",
+                "Perigee height after the disposal burn, above the ellipsoid at the orbit's "
+                f"mean latitude: lifetime under {d.lifetime_limit_years:g} yr",
                 "budget",
                 rel_tol=1e-5,
                 abs_tol=0.05,
