@@ -71,6 +71,9 @@ def test_contacts_and_lifetime_carry_units_and_the_lifetime_caution():
     life = r["lifetime_years"]
     assert life.unit == "yr" and life.value > 0.0
     assert "licensing authority" in life.caution
+    # The re-entry height names its reference (kernel.lifetime: the ellipsoid at the mean
+    # latitude), since it differs from an altitude above the equatorial radius by up to 21 km.
+    assert "above the ellipsoid" in life.description
 
 
 def test_fast_groups_and_plain_values_for_the_editor():

@@ -185,6 +185,14 @@ def test_summary_table_shows_units_and_the_period(tmp_path, capsys):
     line = next(line for line in out.splitlines() if line.strip().startswith("period "))
     assert abs(float(line.split()[1]) - period_s) < 1e-3  # 1 ms
 
+    # Heights name their reference: periapsis altitude = radius - 6378.137 km (WGS-84 a).
+    def value(label: str) -> float:
+        row = next(ln for ln in out.splitlines() if ln.strip().startswith(label + "  "))
+        return float(row.split()[-2])
+
+    alt = value("periapsis altitude (above the equatorial radius)")
+    assert alt == pytest.approx(value("periapsis radius") - 6378.137, abs=1e-5)
+
 
 def test_summary_json(tmp_path, capsys):
     path = tmp_path / "kestrel.case.json"

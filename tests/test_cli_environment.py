@@ -203,3 +203,67 @@ def test_far_future_window_records_the_extrapolated_utc_tai(
     assert code == 0
     assert json.loads(out)["utc_tai_extrapolated"] is True
     assert err.count("UTC - TAI is extrapolated") == 1
+
+
+def test_eclipse_summary_is_over_whole_orbits_and_agrees_with_the_record(
+    tmp_path: Path, capsys
+) -> None:
+    from orbitledger.analysis.window_groups import eclipse_results
+    from orbitledger.case.io import load_case
+
+    # 21600 s is 3.8 periods of candidate A: three whole orbits and a trailing partial one.
+    path = _case(tmp_path)
+    code, out, _ = _run(capsys, "eclipses", str(path), "--json")
+    assert code == 0
+    data = json.loads(out)
+    period = data["per_orbit"][0]["end_s"] - data["per_orbit"][0]["start_s"]
+    whole = [o for o in data["per_orbit"] if o["end_s"] - o["start_s"] >= 0.999 * period]
+    assert len(data["per_orbit"]) == 4 and len(whole) == 3
+    assert [o["whole"] for o in data["per_orbit"]] == [True, True, True, False]
+    s = data["summary"]
+    # By hand: the mean and the largest of the whole orbits' fractions.
+    assert s["whole_orbits"] == 3
+    assert s["mean_fraction"] == pytest.approx(sum(o["fraction"] for o in whole) / 3, abs=1e-12)
+    assert s["max_fraction"] == max(o["fraction"] for o in whole)
+    assert s["mean_fraction"] <= s["max_fraction"]
+    # The record's values (analysis group "eclipses") are the same numbers.
+    record = {r.name: r.value for r in eclipse_results(load_case(path))}
+    assert record["eclipse_fraction_mean"] == pytest.approx(s["mean_fraction"], abs=1e-9)
+    assert record["eclipse_fraction_max"] == pytest.approx(s["max_fraction"], abs=1e-9)
+    code, out, _ = _run(capsys, "eclipses", str(path))
+    assert code == 0
+    assert f"over 3 whole orbits: mean {100 * s['mean_fraction']:.1f} %" in out
+    # A window shorter than one period holds no whole orbit: no fraction per orbit is claimed.
+    short = _case(tmp_path, window={"start_utc": None, "duration_s": 3000.0, "step_s": 10.0})
+    code, out, _ = _run(capsys, "eclipses", str(short), "--json")
+    assert code == 0 and json.loads(out)["summary"]["mean_fraction"] is None
+    code, out, _ = _run(capsys, "eclipses", str(short))
+    assert code == 0 and "no whole orbit in the window" in out
+
+
+def test_any_station_in_the_cli_and_the_record_follow_one_rule(tmp_path: Path, capsys) -> None:
+    from orbitledger.analysis.window_groups import contact_results
+    from orbitledger.case.io import load_case
+
+    path = _case(tmp_path)
+    code, out, _ = _run(capsys, "passes", str(path), "--json")
+    assert code == 0
+    data = json.loads(out)
+    passes = data["passes"]
+    # By hand from the listed passes: passes added over stations; contact time the length of
+    # the union of [AOS, LOS] intervals (overlaps counted once).
+    union, end = 0.0, -math.inf
+    for aos, los in sorted((p["aos_s"], p["los_s"]) for p in passes):
+        union += max(0.0, los - max(aos, end))
+        end = max(end, los)
+    network = [d for d in data["daily"] if d["station"] == "any station"]
+    assert sum(d["passes"] for d in network) == len(passes)
+    assert sum(d["contact_min"] for d in network) == pytest.approx(union / 60.0, abs=1e-6)
+    days = 21600.0 / 86400.0
+    record = {r.name: r for r in contact_results(load_case(path))}
+    assert record["passes_in_window"].value == len(passes)
+    assert record["contact_min_per_day"].value == pytest.approx(union / 60.0 / days, abs=1e-6)
+    assert "added" in record["passes_in_window"].description
+    assert "counted once" in record["contact_min_per_day"].description
+    code, out, _ = _run(capsys, "passes", str(path))
+    assert code == 0 and "overlaps counted once" in out

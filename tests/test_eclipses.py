@@ -13,11 +13,14 @@ from orbitledger.kernel.eclipses import (
     PENUMBRA,
     SUNLIT,
     UMBRA,
+    EclipseSearch,
+    OrbitEclipse,
     beta_angle_deg,
     find_eclipses,
     node_local_times_h,
     shadow_state,
     sunlit_fraction,
+    whole_orbits,
 )
 from orbitledger.kernel.errors import InputError
 from orbitledger.kernel.sun import sun_position_gcrf_km
@@ -152,3 +155,44 @@ def test_unknown_shadow_model_refused() -> None:
     traj = _orbit_with_beta(0.0)
     with pytest.raises(InputError, match="shadow_model"):
         find_eclipses(traj, 3600.0, model="spherical")
+
+
+def test_mean_shadow_fraction_is_over_whole_orbits_only() -> None:
+    # A window of 2.6 periods: two whole orbits and a trailing partial one. The per-orbit list
+    # is built here by hand from the eclipses (shadow time inside [k P, (k + 1) P) over the
+    # orbit's span); the mean "per orbit" is over the two whole orbits only, and for a circle
+    # in a cylindrical shadow each whole orbit's fraction is the closed form above.
+    traj = _orbit_with_beta(0.0)
+    period = traj.period_s
+    found = find_eclipses(traj, 2.6 * period, model="cylindrical")
+    by_hand = []
+    for k in range(3):
+        lo, hi = k * period, min((k + 1) * period, 2.6 * period)
+        shadow = sum(max(0.0, min(e.exit_s, hi) - max(e.entry_s, lo)) for e in found.eclipses)
+        by_hand.append((hi - lo, shadow / (hi - lo)))
+    whole = whole_orbits(found, period)
+    assert [o.orbit for o in whole] == [0, 1]
+    assert len(found.per_orbit) == 3  # the partial orbit is still listed, just not averaged
+    hand_mean = sum(f for span, f in by_hand if span >= period * (1 - 1e-9)) / 2
+    assert float(np.mean([o.fraction for o in whole])) == pytest.approx(hand_mean, abs=1e-6)
+    assert hand_mean == pytest.approx(_cylindrical_fraction(A_KM, 0.0), abs=2e-4)
+    # The trailing 0.6 orbit's own fraction differs from a whole orbit's, so a mean that
+    # counted it as a whole one would be off (the error the summary used to make).
+    naive = float(np.mean([f for _, f in by_hand]))
+    assert abs(naive - hand_mean) > 1e-3
+
+
+def test_whole_orbits_of_a_hand_made_list() -> None:
+    # Period 100 s, window 250 s: fractions 0.37 and 0.37 over whole orbits, 0.29 over the
+    # last 50 s; the mean over whole orbits is 0.37, not (0.37 + 0.37 + 0.29) / 3 = 0.3433.
+    spans = [(0.0, 100.0, 0.37), (100.0, 200.0, 0.37), (200.0, 250.0, 0.29)]
+    orbits = tuple(
+        OrbitEclipse(k, lo, hi, f * (hi - lo), 0.0, f, 0.0, 0.0, 0.0)
+        for k, (lo, hi, f) in enumerate(spans)
+    )
+    search = EclipseSearch("cylindrical", (), orbits, 250.0, 1.0, 0.01, False, ())
+    whole = whole_orbits(search, 100.0)
+    assert [o.orbit for o in whole] == [0, 1]
+    assert float(np.mean([o.fraction for o in whole])) == pytest.approx(0.37, abs=1e-12)
+    short = EclipseSearch("cylindrical", (), orbits[2:], 50.0, 1.0, 0.01, False, ())
+    assert whole_orbits(short, 100.0) == ()

@@ -138,6 +138,7 @@ def test_station_columns_and_tooltip_units(track):
     assert "(deg)" in fig.xaxis[0].axis_label and "(deg)" in fig.yaxis[0].axis_label
     rows = [row for tool in fig.tools if hasattr(tool, "tooltips") for row in tool.tooltips]
     assert ("circle radius", "@{circle_range_km}{0} km") in rows
+    assert "height above ellipsoid" in [name for name, _ in rows]  # geodetic: its reference
     assert any("UTC" in value for _, value in rows)
     text = json.dumps(json_item(fig))
     assert "Harrow Fell" in text

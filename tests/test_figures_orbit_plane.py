@@ -112,6 +112,7 @@ def test_figure_axes_tooltips_overlay():
     rows = [row for tool in fig.tools if hasattr(tool, "tooltips") for row in tool.tooltips]
     assert ("area (drawn outline)", "@{area_km2}{0.000e} km^2") in rows
     assert ("duration", "@{duration_s}{0.0} s") in rows
+    assert "altitude above equatorial radius" in [name for name, _ in rows]  # its reference
     json.dumps(json_item(fig))
 
 

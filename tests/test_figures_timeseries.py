@@ -17,6 +17,7 @@ from orbitledger.figures.timeseries import (
 )
 from orbitledger.kernel import EARTH, Elements, parse_utc
 from orbitledger.kernel.eclipses import find_eclipses
+from orbitledger.kernel.forces import ellipsoidal_height_km
 from orbitledger.kernel.passes import Station, station_passes
 from orbitledger.kernel.propagation import trajectory
 
@@ -72,6 +73,15 @@ def test_height_speed_axes_are_utc_with_units(kestrel):
     assert all(isinstance(f.xaxis[0], DatetimeAxis) for f in figs)
     assert figs[-1].xaxis[0].axis_label == "time (UTC)"
     assert "(km)" in figs[0].yaxis[0].axis_label and "(km/s)" in figs[1].yaxis[0].axis_label
+    # The height names its reference: above the ellipsoid. Over a pole that is 21.385 km more
+    # than radius minus the equatorial radius (WGS-84 a = 6378.137 km, 1/f = 298.257223563,
+    # so b = 6356.752 km; NIMA TR8350.2).
+    assert "above ellipsoid" in figs[0].yaxis[0].axis_label
+    tools = [tool for f in figs for tool in f.tools if hasattr(tool, "tooltips")]
+    rows = [row[0] for tool in tools for row in tool.tooltips]
+    assert "height above ellipsoid" in rows
+    over_pole = ellipsoidal_height_km(np.array([[0.0, 0.0, 6378.137 + 540.0]]))
+    assert float(np.ravel(over_pole)[0]) == pytest.approx(540.0 + 21.3847, abs=1e-3)
     t0 = sources_of(layout)["series-0"].data["time_utc"][0]
     assert t0 == pytest.approx(_ms("2027-03-21T10:30:00Z"), abs=1.0)  # 1 ms
     json.dumps(json_item(layout))

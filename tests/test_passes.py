@@ -11,7 +11,14 @@ import pytest
 from _circular_orbit import circular, plane_basis
 
 from orbitledger.kernel.errors import InputError
-from orbitledger.kernel.passes import PassSearchStepWarning, Station, station_passes
+from orbitledger.kernel.passes import (
+    ANY_STATION,
+    Pass,
+    PassSearchStepWarning,
+    Station,
+    _daily_statistics,
+    station_passes,
+)
 
 pytestmark = pytest.mark.filterwarnings(
     "ignore::orbitledger.kernel.timescales.LeapSecondExtrapolationWarning"
@@ -152,3 +159,36 @@ def test_bad_windows_are_refused() -> None:
     with warnings.catch_warnings():
         warnings.simplefilter("error", PassSearchStepWarning)
         station_passes(traj, [HARROW_FELL], 3600.0, step_s=60.0)  # fine step: no warning
+
+
+def _pass(station: str, aos_s: float, los_s: float) -> Pass:
+    return Pass(station, aos_s, (aos_s + los_s) / 2, los_s, 30.0, 0.0, 180.0, "", "", "")
+
+
+def test_any_station_adds_passes_but_unions_contact_time() -> None:
+    # Hand-made passes in a 10 000 s window (2027-03-21 10:30 UTC start, one UTC day):
+    # Harrow Fell 1000-1600 s and 5000-5400 s, Kuru Ridge 1300-1900 s (overlapping the first).
+    # By hand: "any station" passes = 2 + 1 = 3 (added); contact = union of [1000, 1900] and
+    # [5000, 5400] = 900 + 400 = 1300 s = 21.667 min (not the 1600 s of the durations added);
+    # longest gap = max(1000, 5000 - 1900, 10000 - 5400) = 4600 s.
+    traj = _kestrel()
+    passes = [
+        _pass("Harrow Fell", 1000.0, 1600.0),
+        _pass("Kuru Ridge", 1300.0, 1900.0),
+        _pass("Harrow Fell", 5000.0, 5400.0),
+    ]
+    daily, longest = _daily_statistics(traj, [HARROW_FELL, KURU_RIDGE], passes, 10000.0)
+    by = {d.station: d for d in daily}
+    assert len(daily) == 3  # one day, two stations and the network
+    assert by[ANY_STATION].passes == 3
+    assert by[ANY_STATION].contact_min == pytest.approx(1300.0 / 60.0, abs=1e-9)
+    assert by[ANY_STATION].longest_gap_min == pytest.approx(4600.0 / 60.0, abs=1e-9)
+    assert longest[ANY_STATION] == pytest.approx(4600.0, abs=1e-9)
+    assert by["Harrow Fell"].passes == 2
+    assert by["Harrow Fell"].contact_min == pytest.approx(1000.0 / 60.0, abs=1e-9)
+    assert by["Kuru Ridge"].passes == 1
+    assert by["Kuru Ridge"].contact_min == pytest.approx(600.0 / 60.0, abs=1e-9)
+    # The rule in one line: passes add up over stations, contact time does not.
+    stations = [by["Harrow Fell"], by["Kuru Ridge"]]
+    assert by[ANY_STATION].passes == sum(d.passes for d in stations)
+    assert by[ANY_STATION].contact_min < sum(d.contact_min for d in stations)

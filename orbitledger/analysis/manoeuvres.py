@@ -162,7 +162,7 @@ def budget_for_case(
                 "disposal (perigee lowering)",
                 disposal.dv_km_s,
                 True,
-                f"perigee to {disposal.perigee_altitude_km:.1f} km: lifetime "
+                f"perigee to {disposal.perigee_altitude_km:.1f} km above the ellipsoid: lifetime "
                 f"{disposal.lifetime_after_years:.2f} y <= {limit:g} y",
             )
         )

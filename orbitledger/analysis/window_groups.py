@@ -25,11 +25,11 @@ def eclipse_results(case: Any, trajectory: Any = None) -> list[Result]:
     """``trajectory``: the case's ``case_trajectory`` when the caller has it already."""
     if not _closed_orbit(case):
         return []
-    from ..kernel.eclipses import find_eclipses, node_local_times_h
+    from ..kernel.eclipses import find_eclipses, node_local_times_h, whole_orbits
 
     traj = case_trajectory(case) if trajectory is None else trajectory
     search = find_eclipses(traj, case.window.duration_s)
-    orbits = [o for o in search.per_orbit if o.end_s - o.start_s >= 0.999 * traj.period_s]
+    orbits = whole_orbits(search, traj.period_s)
     rows = [
         Result(
             "eclipses_in_window",
@@ -62,7 +62,7 @@ def eclipse_results(case: Any, trajectory: Any = None) -> list[Result]:
                 "eclipse_fraction_max",
                 float(max(o.fraction for o in orbits)),
                 "",
-                "Largest fraction of an orbit in shadow",
+                "Largest fraction of an orbit in shadow (whole orbits of the window)",
                 "eclipses",
                 abs_tol=1e-4,
             ),
@@ -109,7 +109,8 @@ def contact_results(case: Any, trajectory: Any = None) -> list[Result]:
             "passes_in_window",
             float(len(network)),
             "",
-            "Station passes in the analysis window (all stations)",
+            "Station passes in the analysis window, every station's added (a pass seen by "
+            "two stations at once counts twice)",
             "contacts",
             abs_tol=0.0,
         ),
@@ -117,7 +118,7 @@ def contact_results(case: Any, trajectory: Any = None) -> list[Result]:
             "passes_per_day",
             len(network) / days,
             "1/day",
-            "Passes per day, all stations",
+            "Passes per day, every station's added",
             "contacts",
             rel_tol=1e-9,
             abs_tol=1e-9,
@@ -126,7 +127,8 @@ def contact_results(case: Any, trajectory: Any = None) -> list[Result]:
             "contact_min_per_day",
             contact_s / 60.0 / days,
             "min/day",
-            "Minutes per day in contact with at least one station",
+            "Minutes per day in contact with at least one station (overlapping passes "
+            "counted once)",
             "contacts",
             abs_tol=0.05,
         ),
@@ -183,7 +185,8 @@ def lifetime_results(case: Any) -> list[Result]:
             "lifetime_years",
             float(life.years),
             "yr",
-            f"Orbital lifetime to {reentry:g} km under drag ({life.method}, "
+            f"Orbital lifetime until the perigee is {reentry:g} km above the ellipsoid "
+            f"(at the orbit's mean latitude) under drag ({life.method}, "
             f"{life.solar_activity} solar activity)",
             "lifetime",
             rel_tol=1e-6,
@@ -260,7 +263,8 @@ def budget_results(case: Any, report: Any = None) -> list[Result]:
                 "disposal_perigee_alt_km",
                 d.perigee_altitude_km,
                 "km",
-                f"Perigee after the disposal burn: lifetime under {d.lifetime_limit_years:g} yr",
+                "Perigee height after the disposal burn, above the ellipsoid at the orbit's "
+                f"mean latitude: lifetime under {d.lifetime_limit_years:g} yr",
                 "budget",
                 rel_tol=1e-5,
                 abs_tol=0.05,

@@ -189,6 +189,8 @@ def summary_table(data: Mapping[str, Any]) -> str:
         label, unit = _split_unit(key)
         if key in _AT_EPOCH:
             label += " at the epoch"
+        if key.endswith("_alt_km"):  # the summary's heights: radius minus the equatorial radius
+            label = label.replace(" alt", " altitude") + " (above the equatorial radius)"
         if key == "period_s" and isinstance(value, float):
             unit += f"  ({value / 60.0:.4f} min)"
         rows.append((label, _format(value), unit))

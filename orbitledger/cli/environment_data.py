@@ -139,7 +139,7 @@ def eclipses_data(
     case: Any, model: str = "conical", progress: Callable[[float], None] | None = None
 ) -> dict[str, Any]:
     """Eclipses in the case's window, per-orbit shadow budget, beta angle and node local times."""
-    from ..kernel.eclipses import beta_angle_deg, find_eclipses, node_local_times_h
+    from ..kernel.eclipses import beta_angle_deg, find_eclipses, node_local_times_h, whole_orbits
     from ..kernel.sun import sun_position_from_tt_km
 
     with recorded_warnings() as notes:
@@ -151,7 +151,8 @@ def eclipses_data(
         ts = traj.times(t)
         beta = beta_angle_deg(r, v, sun_position_from_tt_km(ts.tt1, ts.tt2))
         node = node_local_times_h(traj, t[[0, -1]])
-    orbits = [asdict(o) for o in found.per_orbit]
+    whole = whole_orbits(found, traj.period_s)
+    orbits = [asdict(o) | {"whole": o in whole} for o in found.per_orbit]
     data = _header(case, traj, "eclipses")
     data.update(
         shadow_model=found.model,
@@ -162,7 +163,10 @@ def eclipses_data(
         per_orbit=orbits,
         summary={
             "eclipses": len(found.eclipses),
-            "mean_fraction": float(np.mean([o["fraction"] for o in orbits])) if orbits else 0.0,
+            # Over whole orbits only (a trailing partial orbit left out), as in the records.
+            "whole_orbits": len(whole),
+            "mean_fraction": float(np.mean([o.fraction for o in whole])) if whole else None,
+            "max_fraction": max((o.fraction for o in whole), default=None),
             "longest_eclipse_s": max((e.duration_s for e in found.eclipses), default=0.0),
             "beta_min_deg": float(np.min(beta)),
             "beta_max_deg": float(np.max(beta)),

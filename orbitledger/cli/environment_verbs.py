@@ -191,6 +191,8 @@ def run_passes(args: argparse.Namespace) -> int:
     lines += _table(["station", "day (UTC)", "passes", "contact (min)", "longest gap (min)"], daily)
     lines += _volume_lines(data)
     lines += [
+        "any station: passes are every station's added (a pass seen by two stations counts "
+        "twice); contact is the time with at least one station (overlaps counted once)",
         "",
         "longest gap in the window: "
         + ", ".join(f"{k} {v / 3600:.2f} h" for k, v in data["longest_gap_s"].items()),
@@ -257,8 +259,14 @@ def run_eclipses(args: argparse.Namespace) -> int:
     )
     lines += [
         "",
-        f"shadow model {data['shadow_model']}; {s['eclipses']} eclipses; mean shadow fraction "
-        f"{100 * s['mean_fraction']:.1f} % of the orbit; longest {s['longest_eclipse_s'] / 60:.2f} min",
+        f"shadow model {data['shadow_model']}; {s['eclipses']} eclipses; "
+        + (
+            f"shadow fraction over {s['whole_orbits']} whole orbits: mean "
+            f"{100 * s['mean_fraction']:.1f} %, largest {100 * s['max_fraction']:.1f} %"
+            if s["whole_orbits"]
+            else "no whole orbit in the window, so no shadow fraction per orbit"
+        )
+        + f"; longest eclipse {s['longest_eclipse_s'] / 60:.2f} min",
         f"beta angle {s['beta_min_deg']:.2f} to {s['beta_max_deg']:.2f} deg; LTAN {_clock(s['ltan_h_start'])} "
         f"(mean solar time) at the start, {_clock(s['ltan_h_end'])} at the end; LTDN {_clock(s['ltdn_h_start'])}",
         "* = cut at the window edge; " + "; ".join(data["conventions"]),

@@ -244,7 +244,7 @@ def ground_track_figure(
                 tooltip("time", "time_utc", "UTC", "datetime"),
                 tooltip("latitude", "lat_deg", "deg", "0.00"),
                 tooltip("longitude", "lon_deg", "deg", "0.00"),
-                tooltip("height", "height_km", "km", "0.0"),
+                tooltip("height above ellipsoid", "height_km", "km", "0.0"),
             ],
             mode="mouse",
         )

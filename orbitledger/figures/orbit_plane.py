@@ -307,7 +307,7 @@ def _draw_orbit(
         ("orbit", name),
         tooltip("true anomaly", "nu_deg", "deg", "0.0"),
         tooltip("radius", "r_km", "km", "0.0"),
-        tooltip("altitude", "alt_km", "km", "0.0"),
+        tooltip("altitude above equatorial radius", "alt_km", "km", "0.0"),
         tooltip("speed", "speed_km_s", "km/s", "0.000"),
     ]
     add_hover(fig, [conic], state_rows, mode="mouse")
@@ -371,7 +371,7 @@ def _draw_orbit(
         [
             ("point", "@name"),
             tooltip("radius", "r_km", "km", "0.0"),
-            tooltip("altitude", "alt_km", "km", "0.0"),
+            tooltip("altitude above equatorial radius", "alt_km", "km", "0.0"),
         ],
     )
     add_hover(fig, [foci], [("point", "@name"), tooltip("x", "x_km", "km", "0.0")])

@@ -86,7 +86,7 @@ def altitude_speed_figure(
     top = new_figure(
         title=title,
         x_label=_TIME_LABEL,
-        y_label=axis_label("height", "km"),
+        y_label=axis_label("height above ellipsoid", "km"),
         theme=pal,
         width=width,
         height=240,
@@ -104,7 +104,7 @@ def altitude_speed_figure(
     )
     rows = [
         tooltip("time", "time_utc", "UTC", "datetime"),
-        tooltip("height", "height_km", "km", "0.0"),
+        tooltip("height above ellipsoid", "height_km", "km", "0.0"),
         tooltip("radius", "r_km", "km", "0.0"),
         tooltip("speed", "speed_km_s", "km/s", "0.0000"),
     ]

@@ -84,6 +84,7 @@ _PUBLIC: dict[str, tuple[str, ...]] = {
         "node_local_times_h",
         "shadow_state",
         "sunlit_fraction",
+        "whole_orbits",
     ),
     "seasons": ("SeasonSeries", "eclipse_seasons", "mission_seasons"),
     # Orbit design and manoeuvres

@@ -42,6 +42,7 @@ __all__ = [
     "node_local_times_h",
     "shadow_state",
     "sunlit_fraction",
+    "whole_orbits",
 ]
 
 SHADOW_MODELS = ("conical", "cylindrical")
@@ -206,6 +207,17 @@ class EclipseSearch:
     tolerance_s: float
     utc_tai_extrapolated: bool
     notes: tuple[str, ...]
+
+
+def whole_orbits(search: EclipseSearch, period_s: float) -> tuple[OrbitEclipse, ...]:
+    """The orbits of ``search.per_orbit`` that lie whole inside the window.
+
+    A window rarely holds a whole number of orbits: its last entry is then a partial orbit,
+    whose fraction (shadow over its own span) says little of an orbit's shadow budget. Means
+    and maxima "per orbit" are taken over these; an empty tuple when the window is shorter
+    than one period. ``period_s``: the period the orbits were counted with (the trajectory's).
+    """
+    return tuple(o for o in search.per_orbit if o.end_s - o.start_s >= 0.999 * period_s)
 
 
 def find_eclipses(

@@ -94,7 +94,13 @@ class Pass:
 
 @dataclass(frozen=True)
 class DailyContact:
-    """Contact statistics of one station (or ``"any station"``) on one UTC day of the window."""
+    """Contact statistics of one station (or ``"any station"``) on one UTC day of the window.
+
+    For ``"any station"``, ``passes`` adds every station's passes (a pass seen by two stations
+    at once counts twice) while ``contact_min`` is the time in contact with at least one
+    station (overlapping passes counted once), and ``longest_gap_min`` the longest time with
+    none.
+    """
 
     station: str
     day_utc: str
