@@ -30,7 +30,8 @@ EXAMPLE = Path(__file__).resolve().parents[1] / "examples" / "candidate-a.case.j
 def _traffic_of_one_edit(editor: CaseEditor) -> tuple[int, int]:
     """Messages and bytes (JSON text plus binary buffers) the figures send for one more edit."""
     count = [0, 0]
-    for fig in editor._figures:
+    shown = [fig for fig in editor._figures if fig.view is not None]  # not those still waiting
+    for fig in shown:
         view = fig.view
 
         def send(content, buffers=None, view=view) -> None:
@@ -39,7 +40,7 @@ def _traffic_of_one_edit(editor: CaseEditor) -> tuple[int, int]:
 
         view.send = send
     editor.apply({"orbit.e": 0.0042})
-    for fig in editor._figures:
+    for fig in shown:
         del fig.view.send  # back to the widget's own method
     return count[0], count[1]
 

@@ -38,6 +38,7 @@ from .inputkeys import FIGURE_NEEDS, figure_key
 from .livefigures import load_bokehjs
 from .snapshot import EditorSnapshot
 from .tables import ListTable
+from .themeprobe import ThemeProbe
 
 __all__ = ["CaseEditor", "editor_figures"]
 
@@ -74,16 +75,17 @@ class CaseEditor(EditorSnapshot, EditorForm):
     """The editing widget for one case (bound to its case file when given one).
 
     ``source``: a ``CaseFile`` (edits are saved to it) or a bare ``Case`` (edits stay in the
-    session). ``theme``: the figures' palette, ``"light"`` or ``"dark"``. ``debounce_s``: quiet
-    time after the last keystroke before a typed value is applied. ``figures``: (name,
-    build, data) triples; default :func:`editor_figures`.
+    session). ``theme``: the figures' palette, ``"light"`` or ``"dark"``; by default the
+    figures follow the front end's theme (JupyterLab, Notebook 7), light where there is none.
+    ``debounce_s``: quiet time after the last keystroke before a typed value is applied.
+    ``figures``: (name, build, data) triples; default :func:`editor_figures`.
     """
 
     def __init__(
         self,
         source: Any,
         *,
-        theme: str = "light",
+        theme: str | None = None,
         debounce_s: float = 0.35,
         figures: list[tuple[str, Callable, Callable | None]] | None = None,
         window_results: bool = True,
@@ -108,7 +110,13 @@ class CaseEditor(EditorSnapshot, EditorForm):
         self.timings: dict[str, float] = {}
         self.add_class("ol-editor")
         self.layout.width = "100%"
-        self._build(figures if figures is not None else editor_figures(theme))
+        # No theme given: follow the front end's (``themeprobe``); light until it reports.
+        self._theme = theme or "light"
+        self._follow_theme = theme is None and figures is None
+        self._build(figures if figures is not None else editor_figures(self._theme))
+        if self._follow_theme:
+            self._theme_probe = ThemeProbe(self._theme_changed)
+            self.children = [*self.children, self._theme_probe.widget]
         self._refresh_fields(clear_errors=True)
         self._status("opened" if self.case_file is not None else "not bound to a file")
         self._recompute()

@@ -21,7 +21,7 @@ from . import pipeline
 from .background import BackgroundJob
 from .fields import BoolField, ChoiceField, Field, NumberField, TextField, VectorField
 from .formview import view_case
-from .inputkeys import FIGURE_NEEDS
+from .inputkeys import FIGURE_NEEDS, figure_key
 from .livefigures import LiveFigure
 from .plan_tables import AllowanceTable, BurnTable
 from .results import ResultsPanel
@@ -189,6 +189,27 @@ class EditorForm(w.VBox):
             return self._case
         self._view_cache = (self._case, form, shown)
         return shown
+
+    def _theme_changed(self, theme: str) -> None:
+        """The front end shows ``theme``: draw the figures again in its palette."""
+        if theme == self._theme:
+            return
+        self._theme = theme
+        from .casefigures import CASE_FIGURES
+
+        builders = {f.name: (lambda c, f=f: f.build(c, theme), f.data) for f in CASE_FIGURES(theme)}
+        later = pipeline.background_needs(self._case)
+        for figure in self._figures:
+            if figure.name not in builders:
+                continue
+            figure.restyle(*builders[figure.name])
+            need = FIGURE_NEEDS.get(figure.name, "orbit")
+            if need in later and not pipeline.kernel_ready(self._case, need):
+                figure.mark_waiting()  # the background job draws it when its data is there
+                if not self._slow_job.running:
+                    figure.mark_waiting(done=False)  # no job: say so, as after Cancel
+            else:
+                figure.update(self._case, figure_key(figure.name, self._case))
 
     def _refresh_fields(self, *, clear_errors: bool, source: Any = None) -> None:
         case = self._case

@@ -179,6 +179,12 @@ class LiveFigure:
         elif self.waiting:
             self.note.value = f"{self.name}: not updated for this case (window results not run)"
 
+    def restyle(self, build: Callable[[Any], Model], data: Any) -> None:
+        """Take the builders of another palette: the next update builds the figure anew."""
+        with self._lock:
+            self.build, self.data = build, data
+            self.model, self._key = None, None
+
     def update(self, case: Any, key: str | None = None) -> None:
         """Draw ``case``; ``key`` (``inputkeys.figure_key``): when it equals the last drawn
         one, the drawing would be the same and nothing is done."""
