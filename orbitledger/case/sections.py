@@ -21,6 +21,7 @@ from .fields import (
     Longitude,
     Mass,
     Name,
+    NonNegative,
     UtcText,
     ranged,
     rule,
