@@ -65,9 +65,13 @@ class DensityProfile:
             raise InputError("log_rho", table.shape, "needs finite rows, one per time node")
         if t.size > 1 and not np.all(np.diff(t) > 0.0):
             raise InputError("t_years", t, "time nodes must increase")
-        table.setflags(write=False)
-        t.setflags(write=False)
+        slope = np.diff(table, axis=1)
+        for a in (table, t, slope):
+            a.setflags(write=False)
         object.__setattr__(self, "log_rho", table)
+        object.__setattr__(self, "_slope", slope)
+        object.__setattr__(self, "_row0", table[0])
+        object.__setattr__(self, "_slope0", slope[0])
         object.__setattr__(self, "t_years", t)
         object.__setattr__(self, "notes", MappingProxyType(dict(self.notes)))
 
@@ -88,17 +92,22 @@ class DensityProfile:
 
     def log_density(self, h_km: ArrayLike, t_years: ArrayLike = 0.0) -> np.ndarray:
         """ln(rho / (kg/m^3)) at heights ``h_km`` (and times ``t_years``; they broadcast)."""
-        x = (np.asarray(h_km, dtype=float) - self.h0_km) / self.dh_km
+        x = np.asarray(h_km, dtype=float)
+        if self.h0_km != 0.0:
+            x = x - self.h0_km
+        if self.dh_km != 1.0:
+            x = x / self.dh_km
         x = np.maximum(x, 0.0)
-        n = self.log_rho.shape[1]
-        j = np.minimum(x.astype(np.intp), n - 2)
+        j = x.astype(np.intp)
+        j = np.minimum(j, self.log_rho.shape[1] - 2)
         f = x - j
         if not self.time_varying:
-            row = self.log_rho[0]
-            return row[j] + f * (row[j + 1] - row[j])
+            row: np.ndarray = self._row0  # type: ignore[attr-defined]
+            return row.take(j) + f * self._slope0.take(j)  # type: ignore[attr-defined]
+        slope: np.ndarray = self._slope  # type: ignore[attr-defined]
         i0, i1, w = self._rows(t_years)
-        lo = self.log_rho[i0, j] + f * (self.log_rho[i0, j + 1] - self.log_rho[i0, j])
-        hi = self.log_rho[i1, j] + f * (self.log_rho[i1, j + 1] - self.log_rho[i1, j])
+        lo = self.log_rho[i0, j] + f * slope[i0, j]
+        hi = self.log_rho[i1, j] + f * slope[i1, j]
         return lo + w * (hi - lo)
 
     def density_kg_m3(self, h_km: ArrayLike, t_years: ArrayLike = 0.0) -> np.ndarray:
