@@ -77,7 +77,11 @@ def main() -> int:
         best = min_times_s({base: ode, f"{name}, fast kernel": fast}, repeats=repeats)
         report_ratios(best, base)
         f, o = fast(), ode()
-        diff = f"|diff| {abs(f - o):.3g} km" if "disposal" in name else f"rel diff {abs(f / o - 1):.2e}"
+        diff = (
+            f"|diff| {abs(f - o):.3g} km"
+            if "disposal" in name
+            else f"rel diff {abs(f / o - 1):.2e}"
+        )
         print(f"  fast {f:.6g}, ODE {o:.6g}: {diff}")
         if target_s is not None:
             met = best[f"{name}, fast kernel"] <= target_s

@@ -134,8 +134,15 @@ class DisposalPlan:
 
 
 def _batch_lifetimes(
-    r_a: float, r_ps: np.ndarray, i_rad: float, b: float, profile: DensityProfile,
-    radius: float, h_re: float, stop_years: float, body: Body,
+    r_a: float,
+    r_ps: np.ndarray,
+    i_rad: float,
+    b: float,
+    profile: DensityProfile,
+    radius: float,
+    h_re: float,
+    stop_years: float,
+    body: Body,
 ) -> np.ndarray:
     """Lifetimes (years; inf beyond ``stop_years``) of orbits of apogee radius r_a and the
     perigee radii r_ps, all integrated at once (``orbitledger.kernel.decay``)."""
@@ -212,8 +219,8 @@ def disposal_perigee_lowering(
     """Lower the perigee (one burn at apogee) until the drag lifetime is under the limit.
 
     Given the end-of-mission mean ``elements``, the limit in years (> 0), the ballistic
-    coefficient (kg/m^2), the solar-activity level (or a ``density`` profile, e.g. NRLMSIS
-    under a flux scenario) and the re-entry altitude. The lifetime is that of
+    coefficient (kg/m^2), the solar-activity level (or a ``density`` profile,
+    ``orbitledger.kernel.density``) and the re-entry altitude. The lifetime is that of
     ``orbitledger.kernel.lifetime.lifetime_years`` (orbit-averaged); the perigee height is
     searched with batches of candidate perigees integrated at once
     (``orbitledger.kernel.decay``, each stopped at three times the limit) until the highest

@@ -370,8 +370,10 @@ def circular_decay(
     nodes = mid[:, None] + half[:, None] * _GL3_X
     rotation = (1.0 - nodes * w * math.cos(i_rad) / np.sqrt(mu / nodes)) ** 2
     with np.errstate(over="ignore"):
-        dt_da = ballistic_coefficient_kg_m2 * np.exp(-profile.log_density(nodes - radius_km)) / (
-            1e3 * rotation * np.sqrt(mu * nodes)
+        dt_da = (
+            ballistic_coefficient_kg_m2
+            * np.exp(-profile.log_density(nodes - radius_km))
+            / (1e3 * rotation * np.sqrt(mu * nodes))
         )
     cell_t = (dt_da @ _GL3_W) * half
     return edges, np.concatenate(([0.0], np.cumsum(cell_t)))

@@ -12,8 +12,8 @@ time nodes ln(rho) is interpolated linearly; beyond the last node the profile ei
 Two sources build profiles: ``exponential_profile`` (the piecewise-exponential model of
 ``orbitledger.kernel.atmosphere`` at a solar-activity level, tabulated every 1 km, which
 reproduces that model to below 1e-6 relative: its band edges fall on the nodes, and its
-solar-activity factor is quadratic in h) and ``orbitledger.kernel.nrlmsis`` (NRLMSIS 2.1
-averaged over an orbit, local time and season). Looking a height up costs a few array
+solar-activity factor is quadratic in h) and, for a time-varying density, a table of rows
+over time built by the caller (no second model is on this branch yet). Looking a height up costs a few array
 operations, so the lifetime kernel can evaluate thousands of heights per step.
 """
 

@@ -192,7 +192,7 @@ class ForceModel:
     solar_activity: atmosphere level ("low", "moderate", "high"), used only with drag.
     third_bodies: any of "sun", "moon".
     body: the central body (its mu, radius, flattening, J2..J4, rotation rate).
-    density: a ``DensityProfile`` (e.g. NRLMSIS under a flux scenario, time origin at the
+    density: a ``DensityProfile`` (``orbitledger.kernel.density``; time origin at the
     propagation's t = 0) for the drag instead of the exponential model at ``solar_activity``.
     """
 
