@@ -16,15 +16,17 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import asdict, dataclass, field, replace
+from dataclasses import asdict, dataclass, field
 from types import MappingProxyType
 from typing import Any
 
 import numpy as np
 from numpy.typing import ArrayLike
 
-from .atmosphere import DENSITY_MODEL_NAME, density_kg_m3
+from .atmosphere import density_kg_m3
 from .constants import EARTH, G0_M_S2, SECONDS_PER_DAY, TROPICAL_YEAR_DAYS, Body
+from .decay import decay_orbits
+from .density import DensityProfile, exponential_profile
 from .elements import Elements
 from .errors import InputError
 from .lifetime import LIFETIME_CAUTION, lifetime_years
@@ -81,6 +83,7 @@ def drag_makeup_dv_km_s_per_year(
     solar_activity: str = "moderate",
     body: Body = EARTH,
     rotating_atmosphere: bool = True,
+    density: DensityProfile | None = None,
 ) -> float:
     """Delta-v per year, km/s, that replaces what drag takes from the orbit (station-keeping).
 
@@ -91,7 +94,9 @@ def drag_makeup_dv_km_s_per_year(
     Design*, 3rd ed. (1999), Ch. 6, orbit maintenance, times the revolutions per year. F is
     King-Hele's atmospheric-rotation factor (1 - r w cos i / v)^2 (*Satellite Orbits in an
     Atmosphere*, 1987); density from ``orbitledger.kernel.atmosphere`` at the given solar
-    activity, heights above the ellipsoid at the mean latitude.
+    activity, or the ``density`` profile (a time-varying one at its start: pass
+    ``profile.mean_over(0, years)`` for a mission mean), heights above the ellipsoid at the
+    mean latitude.
     """
     a = float(np.asarray(elements.a_km))
     e = float(np.asarray(elements.e))
@@ -105,7 +110,7 @@ def drag_makeup_dv_km_s_per_year(
     r = a * (1.0 - e * cos_e)
     v = np.sqrt(body.mu_km3_s2 / a * (1.0 + e * cos_e) / (1.0 - e * cos_e))  # km/s
     h = r - _mean_radius_km(i_deg, body)
-    rho = density_kg_m3(h, solar_activity)
+    rho = density_kg_m3(h, solar_activity) if density is None else density.density_kg_m3(h)
     factor = 1.0
     if rotating_atmosphere:
         factor = (1.0 - r * body.rotation_rate_rad_s * math.cos(math.radians(i_deg)) / v) ** 2
@@ -128,6 +133,80 @@ class DisposalPlan:
     caution: str = LIFETIME_CAUTION
 
 
+def _batch_lifetimes(
+    r_a: float,
+    r_ps: np.ndarray,
+    i_rad: float,
+    b: float,
+    profile: DensityProfile,
+    radius: float,
+    h_re: float,
+    stop_years: float,
+    body: Body,
+) -> np.ndarray:
+    """Lifetimes (years; inf beyond ``stop_years``) of orbits of apogee radius r_a and the
+    perigee radii r_ps, all integrated at once (``orbitledger.kernel.decay``)."""
+    run = decay_orbits(
+        0.5 * (r_a + r_ps), (r_a - r_ps) / (r_a + r_ps), i_rad=i_rad,
+        ballistic_coefficient_kg_m2=b, profile=profile, radius_km=radius,
+        reentry_altitude_km=h_re, body=body, t_stop_s=stop_years * _YEAR_S,
+    )  # fmt: skip
+    return np.where(run.reentered, run.t_end_s / _YEAR_S, math.inf)
+
+
+def _root_estimate(h: np.ndarray, t: np.ndarray, limit: float) -> float | None:
+    """Where ln T(h) crosses ln(limit): a cubic through the four evaluated points nearest
+    the crossing (fewer when fewer are finite), or None without a crossing."""
+    ok = np.isfinite(t) & (t > 0.0)
+    h, log_t = h[ok], np.log(t[ok])
+    order = np.argsort(h)
+    h, log_t = h[order], log_t[order] - math.log(limit)
+    k = int(np.searchsorted(log_t, 0.0))  # log_t increases with h
+    if k == 0 or k == h.size:
+        return None
+    pick = slice(max(0, k - 2), min(h.size, k + 2))
+    coef = np.polyfit(h[pick] - h[k - 1], log_t[pick], h[pick].size - 1)
+    roots = np.roots(coef) + h[k - 1]
+    real = roots[np.isreal(roots)].real
+    inside = real[(real >= h[k - 1]) & (real <= h[k])]
+    if inside.size:
+        return float(inside[0])
+    w = -log_t[k - 1] / (log_t[k] - log_t[k - 1])
+    return float(h[k - 1] + w * (h[k] - h[k - 1]))
+
+
+def _perigee_search(
+    life, lo: float, hi: float, t_hi: float, limit: float, tol_km: float = 0.1
+) -> tuple[float, float]:
+    """The highest perigee radius with lifetime <= limit, within ``tol_km`` of the root.
+
+    ``life(r_ps)`` gives the lifetimes of a batch of perigee radii. Round one tries 8
+    perigees spread over [lo, hi]; each later round tries perigees 0.4 tol and 2 tol either
+    side of the root of a cubic through the four evaluated ln T nearest the crossing, so a
+    good estimate closes the bracket in one round.
+    """
+    seen_h, seen_t = [hi], [t_hi]
+    t_lo = 0.0
+    candidates = np.linspace(lo, hi, 10)[1:-1]
+    for _ in range(12):
+        t = life(candidates)
+        seen_h.extend(candidates.tolist())
+        seen_t.extend(t.tolist())
+        below, above = candidates[t <= limit], candidates[t > limit]
+        if below.size and below.max() > lo:
+            lo, t_lo = float(below.max()), float(t[candidates == below.max()][0])
+        if above.size and above.min() < hi:
+            hi = float(above.min())
+        if hi - lo <= tol_km:
+            break
+        guess = _root_estimate(np.array(seen_h), np.array(seen_t), limit)
+        if guess is None or not lo < guess < hi:
+            guess = 0.5 * (lo + hi)
+        offsets = np.array([-2.0, -0.4, 0.4, 2.0]) * tol_km
+        candidates = np.unique(np.clip(guess + offsets, lo + 1e-4, hi - 1e-4))
+    return lo, t_lo
+
+
 def disposal_perigee_lowering(
     elements: Elements,
     lifetime_limit_years: float,
@@ -135,68 +214,62 @@ def disposal_perigee_lowering(
     solar_activity: str = "moderate",
     reentry_altitude_km: float = 120.0,
     body: Body = EARTH,
+    density: DensityProfile | None = None,
 ) -> DisposalPlan:
     """Lower the perigee (one burn at apogee) until the drag lifetime is under the limit.
 
     Given the end-of-mission mean ``elements``, the limit in years (> 0), the ballistic
-    coefficient (kg/m^2), the solar-activity level and the re-entry altitude. The lifetime is
+    coefficient (kg/m^2), the solar-activity level (or a ``density`` profile,
+    ``orbitledger.kernel.density``) and the re-entry altitude. The lifetime is that of
     ``orbitledger.kernel.lifetime.lifetime_years`` (orbit-averaged); the perigee height is
-    found by bisection to 0.1 km (the lifetime grows with perigee height at fixed apogee), and
-    the burn is the first burn of ``hohmann_elliptic`` from apogee. No burn when the orbit
-    already decays within the limit. Caution: compliance with a disposal rule is decided by
-    the licensing authority; this is a preliminary estimate with the stated models.
+    searched with batches of candidate perigees integrated at once
+    (``orbitledger.kernel.decay``, each stopped at three times the limit) until the highest
+    perigee that meets the limit is known to 0.1 km (the lifetime grows with perigee height at
+    fixed apogee), and the burn is the first burn of ``hohmann_elliptic`` from apogee. No
+    burn when the orbit already decays within the limit. Caution: compliance with a disposal
+    rule is decided by the licensing authority; this is a preliminary estimate with the stated
+    models.
     """
     limit = float(lifetime_limit_years)
     if not (math.isfinite(limit) and limit > 0.0):
         raise InputError("lifetime_limit_years", lifetime_limit_years, "must be > 0 years")
+    profile = exponential_profile(solar_activity) if density is None else density
     a = float(np.asarray(elements.a_km))
     e = float(np.asarray(elements.e))
-    radius = _mean_radius_km(float(np.asarray(elements.i_deg)), body)
+    i_deg = float(np.asarray(elements.i_deg))
+    radius = _mean_radius_km(i_deg, body)
     r_a, r_p = a * (1.0 + e), a * (1.0 - e)
-
-    def life(rp: float) -> float:
-        trial = replace(elements, a_km=0.5 * (r_a + rp), e=(r_a - rp) / (r_a + rp))
-        res = lifetime_years(
-            trial,
-            ballistic_coefficient_kg_m2=ballistic_coefficient_kg_m2,
-            solar_activity=solar_activity,
-            reentry_altitude_km=reentry_altitude_km,
-            max_years=max(10.0 * limit, 50.0),
-            body=body,
-        )
-        return res.years
-
-    before = life(r_p)
+    b = float(ballistic_coefficient_kg_m2)
+    h_re = float(reentry_altitude_km)
+    before = lifetime_years(
+        elements, ballistic_coefficient_kg_m2=b, solar_activity=solar_activity,
+        reentry_altitude_km=h_re, max_years=max(10.0 * limit, 50.0), body=body, density=density,
+    ).years  # fmt: skip
     assumptions = {
         "lifetime_model": "orbitledger.kernel.lifetime, orbit-averaged drag (King-Hele 1987)",
-        "density_model": DENSITY_MODEL_NAME,
-        "solar_activity": f"{solar_activity}, held constant",
-        "ballistic_coefficient_kg_m2": f"{float(ballistic_coefficient_kg_m2):.6g}",
-        "reentry_altitude_km": f"{float(reentry_altitude_km):g}",
+        "density_model": profile.model,
+        "solar_activity": profile.scenario,
+        "ballistic_coefficient_kg_m2": f"{b:.6g}",
+        "reentry_altitude_km": f"{h_re:g}",
         "burn": "one retrograde burn at apogee lowering the perigee; apogee unchanged",
+        "search": "batches of candidate perigees integrated at once, to 0.1 km",
     }
     if before <= limit:
         return DisposalPlan(
             0.0, r_p - radius, r_a - radius, before, before, limit, MappingProxyType(assumptions)
         )
-    lo = radius + float(reentry_altitude_km) + 1.0  # decays at once
-    hi = r_p
-    while hi - lo > 0.1:
-        mid = 0.5 * (lo + hi)
-        if life(mid) > limit:
-            hi = mid
-        else:
-            lo = mid
-    rp_new = lo
+    i_rad = math.radians(i_deg)
+
+    def life(r_ps: np.ndarray) -> np.ndarray:
+        return _batch_lifetimes(r_a, r_ps, i_rad, b, profile, radius, h_re, 3.0 * limit, body)
+
+    lo = radius + h_re + 1.0  # decays at once
+    rp_new, after = _perigee_search(life, lo, r_p, before, limit)
+    if rp_new == lo:
+        after = float(life(np.array([lo]))[0])
     dv = float(hohmann_elliptic(r_a, r_p, rp_new, r_a, body.mu_km3_s2, min_radius_km=0.0).dv1_km_s)
     return DisposalPlan(
-        dv,
-        rp_new - radius,
-        r_a - radius,
-        before,
-        life(rp_new),
-        limit,
-        MappingProxyType(assumptions),
+        dv, rp_new - radius, r_a - radius, before, after, limit, MappingProxyType(assumptions)
     )
 
 

@@ -209,7 +209,9 @@ def propagate_cowell(
         if sun_moon is not None:
             both = sun_moon(time_s)
             bodies = (both[:3], both[3:])
-        return np.concatenate((y[3:], acceleration_km_s2(model, y[:3], y[3:], sun_moon_km=bodies)))
+        return np.concatenate(
+            (y[3:], acceleration_km_s2(model, y[:3], y[3:], sun_moon_km=bodies, t_s=time_s))
+        )
 
     def decay(time_s: float, y: np.ndarray) -> float:
         return float(ellipsoidal_height_km(y[:3], model.body)) - reentry_altitude_km

@@ -26,7 +26,8 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from .atmosphere import SolarActivityLevel, density_kg_m3, solar_activity_level
-from .constants import AU_KM, EARTH, MOON, SUN, Body
+from .constants import AU_KM, EARTH, MOON, SUN, TROPICAL_YEAR_DAYS, Body
+from .density import DensityProfile
 from .errors import InputError
 from .sun import sun_position_from_tt_km
 
@@ -45,6 +46,7 @@ __all__ = [
 
 THIRD_BODIES = ("sun", "moon")
 _SECONDS_PER_DAY = 86_400.0
+_YEAR_S = TROPICAL_YEAR_DAYS * _SECONDS_PER_DAY
 # omega x r = w (-y, x, 0) for omega = (0, 0, w): r[..., _YXZ] * _CROSS_SIGN * w
 _YXZ = [1, 0, 2]
 _CROSS_SIGN = np.array([-1.0, 1.0, 0.0])
@@ -190,6 +192,8 @@ class ForceModel:
     solar_activity: atmosphere level ("low", "moderate", "high"), used only with drag.
     third_bodies: any of "sun", "moon".
     body: the central body (its mu, radius, flattening, J2..J4, rotation rate).
+    density: a ``DensityProfile`` (``orbitledger.kernel.density``; time origin at the
+    propagation's t = 0) for the drag instead of the exponential model at ``solar_activity``.
     """
 
     zonal_degree: int = 0
@@ -197,6 +201,7 @@ class ForceModel:
     solar_activity: str = "moderate"
     third_bodies: tuple[str, ...] = ()
     body: Body = EARTH
+    density: DensityProfile | None = None
 
     def __post_init__(self) -> None:
         if self.zonal_degree not in (0, 2, 3, 4):
@@ -226,10 +231,12 @@ class ForceModel:
         if self.zonal_degree:
             terms.append(f"zonal J2..J{self.zonal_degree}")
         if self.drag:
-            terms.append(
-                f"drag (B = {self.ballistic_coefficient_kg_m2:.4g} kg/m^2, "
-                f"{self.solar_activity} solar activity)"
+            level = (
+                f"{self.solar_activity} solar activity"
+                if self.density is None
+                else self.density.scenario
             )
+            terms.append(f"drag (B = {self.ballistic_coefficient_kg_m2:.4g} kg/m^2, {level})")
         terms.extend(f"{name} third body" for name in self.third_bodies)
         return ", ".join(terms)
 
@@ -241,12 +248,14 @@ def acceleration_km_s2(
     jd_tt: tuple[ArrayLike, ArrayLike] | None = None,
     *,
     sun_moon_km: tuple[ArrayLike, ArrayLike] | None = None,
+    t_s: float = 0.0,
 ) -> np.ndarray:
     """Total acceleration of ``model`` at positions/velocities ``(..., 3)``, km/s^2, GCRF.
 
     When third bodies act, either ``jd_tt`` (two-part TT Julian date, broadcasting with the
     leading shape) or ``sun_moon_km``, the geocentric Sun and Moon positions already known
-    (e.g. interpolated by a propagator), is needed.
+    (e.g. interpolated by a propagator), is needed. ``t_s``: seconds from the start, where
+    the model's density profile changes with time.
     """
     r = np.asarray(r_km, dtype=float)
     body = model.body
@@ -254,8 +263,14 @@ def acceleration_km_s2(
     if model.zonal_degree:
         acc = acc + zonal_acceleration_km_s2(r, body, model.zonal_degree)
     if model.ballistic_coefficient_kg_m2 is not None:
+        profile = model.density
         acc = acc + drag_acceleration_km_s2(
-            r, v_km_s, model.ballistic_coefficient_kg_m2, model.solar_activity, body
+            r,
+            v_km_s,
+            model.ballistic_coefficient_kg_m2,
+            model.solar_activity,
+            body,
+            None if profile is None else lambda h: profile.density_kg_m3(h, t_s / _YEAR_S),
         )
     if model.third_bodies:
         if sun_moon_km is not None:
