@@ -7,7 +7,8 @@ those two, by hash). A Bokeh figure item (``bokeh.embed.json_item``) can carry m
   ``CustomJSTickFormatter``, ``CustomJSFilter``, ...), ``HTMLTemplateFormatter`` (its template
   is compiled to a function), ``OpenURL`` (navigates away). ``safe_item`` refuses these with
   ``UnsafeFigure``: a record does not run study code, and a figure silently changed would not be
-  the figure the study showed. The message names the figure and the model.
+  the figure the study showed. The message names the figure and the model. The one exception
+  is orbitledger's own figure code (the inertial view's ``PROJECT_JS``, matched exactly).
 - markup that BokehJS puts into the page as HTML: the text of a ``Div`` (unless
   ``render_as_text``) or ``Paragraph``, a ``HoverTool``'s tooltips given as one HTML string, a
   ``Tooltip``'s string content. ``safe_item`` cleans each with the record's HTML cleaner
@@ -35,7 +36,19 @@ class UnsafeFigure(ValueError):
     """A figure carries code a record must not run; the message names figure and model."""
 
 
-def _code_reason(name: str) -> str | None:
+def _own_code() -> frozenset[str]:
+    """The JavaScript of orbitledger's own figures (the inertial view's re-projection): part of
+    this software, the same in every record, not code written by a study."""
+    from orbitledger.figures.inertial import PROJECT_JS
+
+    return frozenset({PROJECT_JS})
+
+
+def _code_reason(name: str, node: dict[str, Any] | None = None) -> str | None:
+    if name == "CustomJS" and node is not None:
+        code = (node.get("attributes") or {}).get("code")
+        if isinstance(code, str) and code in _own_code():
+            return None
     if name.startswith("CustomJS"):
         return f"{name} (JavaScript written by the study)"
     reason = _CODE_MODELS.get(name)
@@ -78,7 +91,7 @@ def problems(item: dict[str, Any]) -> list[str]:
     """What in ``item`` a record must not carry: code models, markup not yet cleaned."""
     found = []
     for node in _models(item):
-        reason = _code_reason(str(node["name"]))
+        reason = _code_reason(str(node["name"]), node)
         if reason:
             found.append(reason)
         for key in _html_fields(node):
@@ -91,7 +104,7 @@ def problems(item: dict[str, Any]) -> list[str]:
 def safe_item(item: dict[str, Any], name: str = "") -> dict[str, Any]:
     """A copy of ``item`` with its markup cleaned; ``UnsafeFigure`` if it carries code."""
     for node in _models(item):
-        reason = _code_reason(str(node["name"]))
+        reason = _code_reason(str(node["name"]), node)
         if reason:
             raise UnsafeFigure(
                 f"figure {name!r} carries code, which a record does not run: {reason}; "

@@ -14,7 +14,9 @@ The lists follow what the code of ``orbitledger.analysis`` reads from a case:
   the stations, the burn plan and the budget;
 - station contact: the trajectory's inputs and the stations;
 - the lifetime: not the window, the stations or the burn plan;
-- the delta-v budget: not the window or the stations (the burn plan is flown from the epoch).
+- the delta-v budget: not the window or the stations (the burn plan is flown from the epoch);
+- the Earth orientation values: the epoch, the window and the table named, not the stations,
+  the burn plan or the budget.
 """
 
 from __future__ import annotations
@@ -46,6 +48,8 @@ IGNORED: dict[str, frozenset[str]] = {
     "lifetime": frozenset({"meta", "stations", "window", "burns"}),
     "budget": frozenset({"meta", "stations", "window"}),
     "one-orbit": frozenset({"meta", "stations", "burns", "budget"}),
+    # the IERS values used: read at the epoch and over the window
+    "earth_orientation": frozenset({"meta", "stations", "burns", "budget"}),
 }
 
 # What each figure's kernel work needs: "orbit" (a conic, analytic: fast), "window" (the
