@@ -48,8 +48,6 @@ def _run_history(args: argparse.Namespace) -> int:
         by_rev = {h["revision"]: h.get("changes", []) for h in kept}
         for r in rows:
             r["changes"] = by_rev.get(r["revision"], [])
-    for r in rows:
-        r["latest"] = ledger.latest_state(args.record_id, r["revision"])
     if args.json:
         doc = {"ledger": ledger.address, "record_id": args.record_id, "revisions": rows}
         json.dump(doc, sys.stdout, indent=2, ensure_ascii=False)
