@@ -19,6 +19,7 @@ import json
 from abc import ABC, abstractmethod
 from collections.abc import Iterator
 from contextlib import contextmanager
+from dataclasses import asdict
 from typing import Any
 
 from orbitledger.kernel.errors import InputError
@@ -271,23 +272,25 @@ class LedgerBase(ABC):
         of the last sign-off (``record-approved.html``, ...) is the revision's current state.
         """
         names = {a.name: a for a in self.artifacts(record_id, revision)}
-        signed = self.signoffs(record_id, revision)
-        status = status_of([s.role for s in signed])
-        out: dict[str, Any] = {"status": status}
-        for kind in ("html", "pdf", "json"):
-            chosen = names.get(f"record.{kind}")
-            for s in signed:  # in signing order: the last one wins
-                chosen = names.get(f"record-{s.role}.{kind}", chosen)
-            if chosen is not None:
-                out[kind] = chosen.relpath
-                out[f"{kind}_sha256"] = chosen.sha256
-        return out
+        return _latest(names, self.signoffs(record_id, revision))
 
     def history(self, record_id: str) -> list[dict[str, Any]]:
-        """Every committed revision with status, sign-offs, changes and latest state (JSON-ready)."""
+        """Every committed revision: status, sign-offs, changes, latest state (JSON-ready).
+
+        Four queries whatever the number of revisions (revisions, sign-offs, changes, the
+        record artifacts' names), so a long history lists as fast as a short one.
+        """
         revisions = self.revisions(record_id)
         signoffs = self.record_signoffs(record_id)
         changes = self.record_changes(record_id)
+        names: dict[int, dict[str, Artifact]] = {}
+        for row in self._query(
+            f"SELECT record_id, revision, name, {self._RELPATH}, sha256, size, created_utc"
+            " FROM artifacts WHERE record_id = ? AND name LIKE 'record%'",
+            (record_id,),
+        ):
+            a = Artifact(*row)
+            names.setdefault(a.revision, {})[a.name] = a
         rows = []
         for r in revisions:
             signed = signoffs.get(r.revision, [])
@@ -300,8 +303,9 @@ class LedgerBase(ABC):
                     "note": r.note,
                     "built_utc": r.built_utc,
                     "status": r.status,
-                    "signoffs": [_signoff_json(s) for s in signed],
+                    "signoffs": [asdict(s) for s in signed],
                     "changes": changes.get(r.revision, []),
+                    "latest": _latest(names.get(r.revision, {}), signed),
                 }
             )
         return rows
@@ -347,7 +351,13 @@ class LedgerBase(ABC):
             )
 
 
-def _signoff_json(s: SignOff) -> dict[str, Any]:
-    from dataclasses import asdict
-
-    return asdict(s)
+def _latest(names: dict[str, Artifact], signed: list[SignOff]) -> dict[str, Any]:
+    out: dict[str, Any] = {"status": status_of([s.role for s in signed])}
+    for kind in ("html", "pdf", "json"):
+        chosen = names.get(f"record.{kind}")
+        for s in signed:  # in signing order: the last one wins
+            chosen = names.get(f"record-{s.role}.{kind}", chosen)
+        if chosen is not None:
+            out[kind] = chosen.relpath
+            out[f"{kind}_sha256"] = chosen.sha256
+    return out

@@ -157,7 +157,9 @@ class PgLedger(LedgerBase):
         import psycopg
 
         try:
-            return self._reading().execute(sql.replace("?", "%s"), params).fetchall()
+            # psycopg's placeholders are %s: a literal % (LIKE 'record%') is written %%
+            sql = sql.replace("%", "%%").replace("?", "%s")
+            return self._reading().execute(sql, params).fetchall()
         except psycopg.Error as err:
             raise self.translate(err) from None
 

@@ -95,7 +95,7 @@ def write_index(ledger: Any, out: Path) -> Site:
             record = ledger.record(record_id, row["revision"])
             row["findings"] = findings(record)
             row["has_criteria"] = bool(record.get("criteria") or record.get("findings"))
-            state = ledger.latest_state(record_id, row["revision"])
+            state = row["latest"]
             row["current_name"] = (state.get("html") or "").rsplit("/", 1)[-1]
             row["current_sha256"] = state.get("html_sha256", "")
             row["current"] = ""
@@ -114,9 +114,8 @@ def write_index(ledger: Any, out: Path) -> Site:
                 pages += 1
             previous = record
             latest_record = record
-            row["_state"] = state
         last = rows[-1]
-        copied = _copy_current(ledger, out, record_id, last["revision"], last["_state"])
+        copied = _copy_current(ledger, out, record_id, last["revision"], last["latest"])
         if "html" in copied:
             last["current"] = f"../{copied['html']}"
         newest_first = list(reversed(rows))

@@ -29,7 +29,9 @@ def admin_url() -> str:
     return url
 
 
-def with_database(url: str, dbname: str, user: str | None = None, password: str | None = None) -> str:
+def with_database(
+    url: str, dbname: str, user: str | None = None, password: str | None = None
+) -> str:
     """``url`` pointing at another database (and, if given, as another user)."""
     parts = urlsplit(url)
     netloc = parts.netloc.rsplit("@", 1)[-1]

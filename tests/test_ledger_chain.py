@@ -117,7 +117,9 @@ def test_a_consistently_replaced_revision_breaks_the_next_link(ledger_dir, capsy
     db.close()
     code, out = _verify(ledger_dir, capsys)
     assert code == 1
-    assert "revision 3: the record JSON of revision 2 is not the one revision 3 was built after" in out
+    assert (
+        "revision 3: the record JSON of revision 2 is not the one revision 3 was built after" in out
+    )
 
 
 def test_a_removed_row_and_reordered_rows_are_named(ledger_dir, capsys):
@@ -152,4 +154,6 @@ def test_the_same_checks_hold_in_postgresql(pristine, pg_url, capsys):
     code, out = _verify(pg_url, capsys)
     assert code == 1
     assert f"records/{RID}/r0001/record.json: SHA-256 differs from the index" in out
-    assert "revision 2: the record JSON of revision 1 is not the one revision 2 was built after" in out
+    assert (
+        "revision 2: the record JSON of revision 1 is not the one revision 2 was built after" in out
+    )

@@ -74,7 +74,10 @@ def test_folder_to_postgresql_to_folder_is_bit_for_bit(tmp_path, pg_url):
     for path in (tmp_path / "first" / "records").rglob("*"):  # the files themselves, byte for byte
         if path.is_file():
             twin = tmp_path / "back" / path.relative_to(tmp_path / "first")
-            assert hashlib.sha256(twin.read_bytes()).digest() == hashlib.sha256(path.read_bytes()).digest()
+            assert (
+                hashlib.sha256(twin.read_bytes()).digest()
+                == hashlib.sha256(path.read_bytes()).digest()
+            )
     assert back.check() == [] and pg.check() == []
 
 
@@ -135,12 +138,25 @@ def test_export_writes_files_that_sha256sum_checks(tmp_path, capsys):
     ledger = Ledger(tmp_path / "ledger")
     _fill(ledger)
     out = tmp_path / "export"
-    code = main(["ledger", "export", "KES2-ORB-001", "1", "--out", str(out), "--ledger", str(tmp_path / "ledger")])
+    code = main(
+        [
+            "ledger",
+            "export",
+            "KES2-ORB-001",
+            "1",
+            "--out",
+            str(out),
+            "--ledger",
+            str(tmp_path / "ledger"),
+        ]
+    )
     assert code == 0 and "exported 5 artifacts" in capsys.readouterr().out
     export_artifacts(ledger, out)  # everything; what is there already is left as it is
     if shutil.which("sha256sum") is None:
         pytest.skip("GNU coreutils sha256sum not installed")
-    done = subprocess.run(["sha256sum", "-c", "SHA256SUMS"], cwd=out, capture_output=True, text=True)
+    done = subprocess.run(
+        ["sha256sum", "-c", "SHA256SUMS"], cwd=out, capture_output=True, text=True
+    )
     assert done.returncode == 0, done.stdout + done.stderr
     assert done.stdout.count(": OK") == 2 * 3 * 3 + 2
 

@@ -51,7 +51,11 @@ def test_a_new_ledger_has_the_current_schema_and_refuses_updates(tmp_path):
     _commit(ledger)
     db = sqlite3.connect(tmp_path / "ledger" / "index.sqlite")
     assert db.execute("PRAGMA user_version").fetchone() == (2,)
-    for sql in ("UPDATE revisions SET note = 'x'", "DELETE FROM artifacts", "DELETE FROM revisions"):
+    for sql in (
+        "UPDATE revisions SET note = 'x'",
+        "DELETE FROM artifacts",
+        "DELETE FROM revisions",
+    ):
         with pytest.raises(sqlite3.DatabaseError, match="write-once"):
             db.execute(sql)
 
@@ -72,14 +76,22 @@ def _version_1_ledger(folder: Path, revisions: int = 1) -> None:
         )
         db.execute(
             "INSERT INTO artifacts VALUES (?, ?, 'record.html', ?, ?, ?, 't')",
-            (RID, n, path.relative_to(folder).as_posix(), hashlib.sha256(path.read_bytes()).hexdigest(), path.stat().st_size),
+            (
+                RID,
+                n,
+                path.relative_to(folder).as_posix(),
+                hashlib.sha256(path.read_bytes()).hexdigest(),
+                path.stat().st_size,
+            ),
         )
     first = hashlib.sha256(b"<html>1</html>").hexdigest()
     db.execute("INSERT INTO signoffs VALUES (?, 1, 'checked', 'C', 't', ?)", (RID, first))
     n = revisions + 1  # a build that died after reserving: pending row, half a folder
     (folder / "records" / RID / f"r{n:04d}").mkdir()
     (folder / "records" / RID / f"r{n:04d}" / "record.html").write_bytes(b"half")
-    db.execute("INSERT INTO revisions (record_id, revision, state) VALUES (?, ?, 'pending')", (RID, n))
+    db.execute(
+        "INSERT INTO revisions (record_id, revision, state) VALUES (?, ?, 'pending')", (RID, n)
+    )
     db.commit()
     db.close()
 
@@ -89,7 +101,9 @@ def test_a_version_1_ledger_is_migrated_in_order(tmp_path):
     _version_1_ledger(folder)
     ledger = Ledger(folder)
     assert [(r.revision, r.status) for r in ledger.revisions(RID)] == [(1, "checked")]
-    assert sqlite3.connect(folder / "index.sqlite").execute("PRAGMA user_version").fetchone() == (2,)
+    assert sqlite3.connect(folder / "index.sqlite").execute("PRAGMA user_version").fetchone() == (
+        2,
+    )
     assert not (folder / "records" / RID / "r0002").exists()  # moved to .abandoned
     assert ledger.check() == []
     assert _commit(ledger) == 2
@@ -108,7 +122,10 @@ def test_signoff_defects_are_clear_errors_and_leave_nothing(tmp_path):
     ledger = Ledger(tmp_path / "ledger")
     _commit(ledger)
     folder = tmp_path / "ledger" / "records" / RID / "r0001"
-    with pytest.raises(InputError, match=r"revision = 'KES2-ORB-001 5': not found \(revisions in this ledger: \[1\]"):
+    with pytest.raises(
+        InputError,
+        match=r"revision = 'KES2-ORB-001 5': not found \(revisions in this ledger: \[1\]",
+    ):
         ledger.add_signoff(RID, 5, _signoff("checked"), {"record-checked.html": b"x"}, "checked")
     with pytest.raises(InputError, match="--role = 'reviewed': choose checked or approved"):
         ledger.add_signoff(RID, 1, _signoff("reviewed"), {}, "reviewed")
@@ -136,7 +153,17 @@ def _read_only_run(ledger_dir: Path, *argv: str) -> subprocess.CompletedProcess:
         if shutil.which("unshare") is None:
             pytest.skip("read-only test as root needs unshare(1) for a private read-only mount")
         script = 'mount --bind -o ro "$0" "$0" && exec "$@"'
-        cmd = ["unshare", "--mount", "--propagation", "private", "sh", "-c", script, str(ledger_dir), *cmd]
+        cmd = [
+            "unshare",
+            "--mount",
+            "--propagation",
+            "private",
+            "sh",
+            "-c",
+            script,
+            str(ledger_dir),
+            *cmd,
+        ]
         return subprocess.run(cmd, capture_output=True, text=True, check=False)
     for path in [ledger_dir, *ledger_dir.rglob("*")]:
         path.chmod(path.stat().st_mode & ~0o222)
@@ -164,9 +191,22 @@ def test_a_read_only_ledger_is_listed_and_verified(tmp_path, old_schema):
         ["ledger", "export", RID, "--out", str(tmp_path / "out")],
         ["index", "--out", str(tmp_path / "site")],
     ):
-        done = _read_only_run(ledger_dir, *argv, *([] if "verify" in argv else ["--ledger", str(ledger_dir)]))
+        done = _read_only_run(
+            ledger_dir, *argv, *([] if "verify" in argv else ["--ledger", str(ledger_dir)])
+        )
         assert done.returncode == 0, (argv, done.stderr)
-    done = _read_only_run(ledger_dir, "sign", RID, "1", "--role", "checked", "--name", "C", "--ledger", str(ledger_dir))
+    done = _read_only_run(
+        ledger_dir,
+        "sign",
+        RID,
+        "1",
+        "--role",
+        "checked",
+        "--name",
+        "C",
+        "--ledger",
+        str(ledger_dir),
+    )
     assert done.returncode == 2
     assert done.stderr.count("\n") == 1 and "the ledger is read-only here" in done.stderr
     assert {p: p.read_bytes() for p in ledger_dir.rglob("*") if p.is_file()} == before
@@ -195,9 +235,14 @@ def test_a_full_disk_gives_one_line_and_leaves_the_ledger_as_it_was(tmp_path):
     def limited() -> None:
         resource.setrlimit(resource.RLIMIT_FSIZE, (limit, limit))
 
-    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, preexec_fn=limited)
+    done = subprocess.run(
+        [sys.executable, "-c", script], capture_output=True, text=True, preexec_fn=limited
+    )
     assert done.returncode == 2, done.stderr
-    assert done.stderr.count("\n") == 1 and "disk full (File too large): nothing was recorded" in done.stderr
+    assert (
+        done.stderr.count("\n") == 1
+        and "disk full (File too large): nothing was recorded" in done.stderr
+    )
     ledger = Ledger(ledger_dir)
     assert [r.revision for r in ledger.revisions(RID)] == [1]
     assert ledger.check() == []

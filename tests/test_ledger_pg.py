@@ -49,6 +49,10 @@ def test_revisions_artifacts_and_signoffs_round_trip(pg_url):
     )  # fmt: skip
     assert [r.status for r in ledger.revisions(RID)] == ["draft", "checked", "draft"]
     assert ledger.latest_state(RID, 2)["html"] == f"records/{RID}/r0002/record-checked.html"
+    # history() finds the same states in one query of the artifacts (a LIKE with '%' in it)
+    assert [h["latest"] for h in ledger.history(RID)] == [
+        ledger.latest_state(RID, n) for n in (1, 2, 3)
+    ]
     assert ledger.check() == []  # the server's own sha256() agrees with every stored hash
 
 
@@ -168,7 +172,9 @@ def test_a_server_that_never_answers_times_out_in_one_line():
 def test_wrong_credentials_are_named_and_the_password_hidden(pg_url):
     admin = admin_url()
     with pytest.raises(InputError, match=r'wrong credentials: no such user .*"no_such_person"'):
-        open_ledger(with_database(pg_url, pg_url.rsplit("/", 1)[-1].split("?")[0], "no_such_person"))
+        open_ledger(
+            with_database(pg_url, pg_url.rsplit("/", 1)[-1].split("?")[0], "no_such_person")
+        )
     tcp = os.environ.get("ORBITLEDGER_TEST_PG_TCP_URL")
     if not tcp:
         pytest.skip("a wrong password needs ORBITLEDGER_TEST_PG_TCP_URL (password auth; .ci/run)")

@@ -20,7 +20,9 @@ RID = "KES2-ORB-001"
 def duties(pg_url):
     """A ledger with the duties of docs/ledger.md; the address of the ledger as each person."""
     with connect_admin(admin_url()) as conn:
-        if not conn.execute("SELECT 1 FROM pg_roles WHERE rolname = 'orbitledger_builder'").fetchone():
+        if not conn.execute(
+            "SELECT 1 FROM pg_roles WHERE rolname = 'orbitledger_builder'"
+        ).fetchone():
             conn.execute(docs_sql("Run this once\nper cluster"))
     open_ledger(pg_url)  # `orbitledger ledger init` as the database's owner
     with connect_admin(pg_url) as conn:
@@ -50,10 +52,17 @@ def test_a_builder_builds_but_cannot_sign_or_delete(duties):
     import psycopg
 
     assert _build(duties["alice"]) == 1
-    with pytest.raises(InputError, match=r"role alice lacks the privilege: signing as checked is the checker's duty \(role orbitledger_checker\)"):
+    with pytest.raises(
+        InputError,
+        match=r"role alice lacks the privilege: signing as checked is the checker's duty \(role orbitledger_checker\)",
+    ):
         _sign(duties["alice"], "checked")
     with open_ledger(duties["alice"]).connect() as conn:
-        for sql in ("DELETE FROM artifacts", "DELETE FROM revisions", "UPDATE revisions SET note = 'x'"):
+        for sql in (
+            "DELETE FROM artifacts",
+            "DELETE FROM revisions",
+            "UPDATE revisions SET note = 'x'",
+        ):
             with pytest.raises(psycopg.errors.InsufficientPrivilege):
                 conn.execute(sql)
     assert open_ledger(duties["alice"]).revisions(RID)[0].status == "draft"
@@ -72,7 +81,10 @@ def test_checker_and_approver_sign_only_their_role(duties):
         _force_signoff(duties["carol"], "approved")
     _sign(duties["dave"], "approved")
     assert open_ledger(duties["carol"]).revisions(RID)[0].status == "approved"
-    assert [s.role for s in open_ledger(duties["alice"]).signoffs(RID, 1)] == ["checked", "approved"]
+    assert [s.role for s in open_ledger(duties["alice"]).signoffs(RID, 1)] == [
+        "checked",
+        "approved",
+    ]
 
 
 def _force_signoff(url: str, role: str) -> None:

@@ -65,7 +65,10 @@ def test_history_json_points_to_the_latest_signed_state(ledger_dir, capsys):
     assert second["changes"][0] == "candidate-a.case.json: orbit.altitude_km changed: 540 -> 560"
     assert main(["history", A, "--ledger", str(ledger_dir)]) == 0
     text = capsys.readouterr().out
-    assert f"current state (approved): {ledger_dir.resolve()}/records/{A}/r0001/record-approved.html" in text
+    assert (
+        f"current state (approved): {ledger_dir.resolve()}/records/{A}/r0001/record-approved.html"
+        in text
+    )
 
 
 def test_diff_html_writes_the_side_by_side_page(ledger_dir, tmp_path, capsys):

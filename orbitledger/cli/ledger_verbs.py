@@ -58,7 +58,6 @@ def _run_history(args: argparse.Namespace) -> int:
         for r in rows:
             r["changes"] = by_rev.get(r["revision"], [])
     for r in rows:
-        r["latest"] = ledger.latest_state(args.record_id, r["revision"])
         if r["signoffs"]:  # signed or unsigned, name and certificate: from the signed copy
             by_role = {s["role"]: s for s in r["signoffs"]}
             summaries = signoff_summaries(ledger, args.record_id, r["revision"])
