@@ -36,6 +36,7 @@ from orbitledger.kernel.errors import InputError
 
 from . import record as rec
 from .figure_items import item_fingerprint
+from .record_files import read_json_record, read_pdf_record
 
 __all__ = ["Check", "VerifyReport", "read_record", "verify_file", "verify_record"]
 
@@ -118,13 +119,10 @@ def read_record(path: str | Path) -> tuple[dict[str, Any], dict[str, Any]]:
         raise InputError("RECORD", str(path), "no such file")
     data = path.read_bytes()
     if data[:5] == b"%PDF-":
-        return _read_pdf(path)
+        return read_pdf_record(path)
     text = data.decode("utf-8", errors="replace")
     if path.suffix == ".json" and text.lstrip().startswith("{"):  # a record's JSON on its own
-        try:
-            return json.loads(text), {"kind": "json"}
-        except json.JSONDecodeError as err:
-            raise InputError("RECORD", str(path), f"the record JSON does not parse: {err}") from None
+        return read_json_record(path, text)
     found = _RECORD_SCRIPT.search(text)
     if not found:
         raise InputError("RECORD", str(path), "not an orbitledger record (no embedded record JSON)")
@@ -137,26 +135,6 @@ def read_record(path: str | Path) -> tuple[dict[str, Any], dict[str, Any]]:
     figures = [(name, json.loads(body)) for name, body in _FIGURE_SCRIPT.findall(text)]
     shown = [(html.unescape(k), html.unescape(v)) for k, v in _SHOWN_VALUE.findall(text)]
     return record, {"kind": "html", "figures": figures, "shown": shown}
-
-
-def _read_pdf(path: Path) -> tuple[dict[str, Any], dict[str, Any]]:
-    from pypdf import PdfReader
-
-    try:
-        attachments = {name: blobs[0] for name, blobs in PdfReader(path).attachments.items()}
-    except Exception as err:  # pypdf raises several kinds for a damaged file
-        raise InputError("RECORD", str(path), f"unreadable PDF: {err}") from None
-    if "record.json" not in attachments:
-        raise InputError(
-            "RECORD", str(path), "not an orbitledger record (no record.json attachment)"
-        )
-    try:
-        record = json.loads(attachments["record.json"])
-    except json.JSONDecodeError as err:
-        raise InputError(
-            "RECORD", str(path), f"the attached record JSON does not parse: {err}"
-        ) from None
-    return record, {"kind": "pdf", "attachments": attachments}
 
 
 def _as_float(value: Any) -> float:

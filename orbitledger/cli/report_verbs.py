@@ -155,7 +155,7 @@ def _run_sign(args: argparse.Namespace) -> int:
     ledger = _open_ledger(args)
     done = sign(
         ledger, args.record_id, args.rev, args.role, args.name,
-        signer=signer, note=args.note or "", tsa_url=getattr(args, "tsa", None),
+        signer=signer, note=args.note or "",
     )  # fmt: skip
     org = f" ({done.org})" if done.org else ""
     print(
