@@ -167,7 +167,7 @@ def _run_sign(args: argparse.Namespace) -> int:
         print("  UNSIGNED: a typed name without a key; records and verify show it as unsigned")
     print(f"  refers to record.html SHA-256 {done.artifact_sha256}")
     for name, path in done.files.items():
-        print(f"  {name:<22}{path}")
+        print(f"  {name:<25} {path}")
     for message in done.messages:
         print(f"orbitledger: {message}", file=sys.stderr)
     return 0
