@@ -61,7 +61,7 @@ def stamp_box(role: str, width_pt: float, height_pt: float) -> tuple[float, floa
     gap = 6.0
     width = (width_pt - 2 * margin - 2 * gap) / 3
     x0 = margin + ROLE_ORDER.index(role) * (width + gap)
-    return (x0, height_pt - 42.0, x0 + width, height_pt - 6.0)
+    return (x0, height_pt - 40.0, x0 + width, height_pt - 7.0)
 
 
 def _asn1(signer: Signer) -> tuple[Any, Any, list[Any]]:
@@ -79,9 +79,7 @@ def _asn1(signer: Signer) -> tuple[Any, Any, list[Any]]:
     return key, cert, chain
 
 
-def sign_pdf(
-    pdf: bytes, signer: Signer, role: str, time_utc: str, *, tsa_url: str | None = None
-) -> bytes:
+def sign_pdf(pdf: bytes, signer: Signer, role: str, time_utc: str) -> bytes:
     """``pdf`` with one more signature, by ``signer`` as ``role`` (see the module docstring)."""
     from pyhanko.pdf_utils.incremental_writer import IncrementalPdfFileWriter
     from pyhanko.pdf_utils.reader import PdfFileReader
@@ -123,15 +121,8 @@ def sign_pdf(
         text_box_style=TextBoxStyle(font_size=7),
         border_width=1,
     )
-    timestamper = None
-    if tsa_url:
-        from pyhanko.sign.timestamps import HTTPTimeStamper
-
-        timestamper = HTTPTimeStamper(tsa_url)
     spec = fields.SigFieldSpec(sig_field_name=role, on_page=0, box=stamp_box(role, width, height))
-    pdf_signer = signers.PdfSigner(
-        meta, simple, timestamper=timestamper, stamp_style=style, new_field_spec=spec
-    )
+    pdf_signer = signers.PdfSigner(meta, simple, stamp_style=style, new_field_spec=spec)
 
     def run() -> bytes:
         writer = IncrementalPdfFileWriter(io.BytesIO(pdf))
@@ -141,5 +132,5 @@ def sign_pdf(
         return outside_event_loop(run)
     except InputError:
         raise
-    except Exception as err:  # a time-stamp server that failed, mostly
-        raise InputError("--tsa" if tsa_url else "record.pdf", tsa_url, f"signing failed: {err}") from None
+    except Exception as err:  # pyhanko raises several kinds for a PDF it cannot extend
+        raise InputError("record.pdf", None, f"signing failed: {err}") from None

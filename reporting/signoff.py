@@ -107,7 +107,6 @@ def sign(
     *,
     signer: Signer | None = None,
     note: str = "",
-    tsa_url: str | None = None,
 ) -> SignResult:
     """Sign revision ``revision`` of ``record_id`` as ``role`` (see the module docstring).
 
@@ -163,7 +162,7 @@ def sign(
     if pdf_name is not None and signer is not None:
         from .sign_pdf import sign_pdf
 
-        files[f"record-{role}.pdf"] = sign_pdf(files_in[pdf_name], signer, role, now, tsa_url=tsa_url)
+        files[f"record-{role}.pdf"] = sign_pdf(files_in[pdf_name], signer, role, now)
     elif pdf_name is not None:
         messages.append(
             f"no record-{role}.pdf: a PDF carries sign-offs as signatures, and this one is unsigned"
@@ -193,7 +192,7 @@ def signoff_summaries(ledger: Ledger, record_id: str, revision: int) -> list[dic
     ``"signed": None`` and a ``problem``.
     """
     artifacts = {a.name: a for a in ledger.artifacts(record_id, revision)}
-    rows = ledger.signoffs(record_id, revision)
+    rows = sorted(ledger.signoffs(record_id, revision), key=lambda s: ROLES.index(s.role))
     name = next(
         (f"record-{s.role}.json" for s in reversed(rows) if f"record-{s.role}.json" in artifacts),
         "record.json",

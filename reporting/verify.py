@@ -36,8 +36,9 @@ from orbitledger.kernel.errors import InputError
 
 from . import record as rec
 from .figure_items import item_fingerprint
-from .verify_page import table_values
 from .findings import check_findings
+from .record_files import read_json_record, read_pdf_record
+from .verify_page import table_values
 
 __all__ = ["Check", "VerifyReport", "read_record", "verify_file", "verify_record"]
 
@@ -98,13 +99,10 @@ def read_record(path: str | Path) -> tuple[dict[str, Any], dict[str, Any]]:
         raise InputError("RECORD", str(path), "no such file")
     data = path.read_bytes()
     if data[:5] == b"%PDF-":
-        return _read_pdf(path)
+        return read_pdf_record(path)
     text = data.decode("utf-8", errors="replace")
     if path.suffix == ".json" and text.lstrip().startswith("{"):  # a record's JSON on its own
-        try:
-            return json.loads(text), {"kind": "json"}
-        except json.JSONDecodeError as err:
-            raise InputError("RECORD", str(path), f"the record JSON does not parse: {err}") from None
+        return read_json_record(path, text)
     found = _RECORD_SCRIPT.search(text)
     if not found:
         raise InputError("RECORD", str(path), "not an orbitledger record (no embedded record JSON)")
@@ -117,26 +115,6 @@ def read_record(path: str | Path) -> tuple[dict[str, Any], dict[str, Any]]:
     figures = [(name, json.loads(body)) for name, body in _FIGURE_SCRIPT.findall(text)]
     shown = [(html.unescape(k), html.unescape(v)) for k, v in _SHOWN_VALUE.findall(text)]
     return record, {"kind": "html", "figures": figures, "shown": shown, "html": text}
-
-
-def _read_pdf(path: Path) -> tuple[dict[str, Any], dict[str, Any]]:
-    from pypdf import PdfReader
-
-    try:
-        attachments = {name: blobs[0] for name, blobs in PdfReader(path).attachments.items()}
-    except Exception as err:  # pypdf raises several kinds for a damaged file
-        raise InputError("RECORD", str(path), f"unreadable PDF: {err}") from None
-    if "record.json" not in attachments:
-        raise InputError(
-            "RECORD", str(path), "not an orbitledger record (no record.json attachment)"
-        )
-    try:
-        record = json.loads(attachments["record.json"])
-    except json.JSONDecodeError as err:
-        raise InputError(
-            "RECORD", str(path), f"the attached record JSON does not parse: {err}"
-        ) from None
-    return record, {"kind": "pdf", "attachments": attachments, "data": path.read_bytes()}
 
 
 def _as_float(value: Any) -> float:
@@ -316,7 +294,7 @@ def verify_record(record: dict[str, Any], extras: dict[str, Any], path: str = ""
     _check_extras(report, record, extras)
     if extras["kind"] == "html":
         check_page(report, record, extras["html"])
-    else:
+    elif extras["kind"] == "pdf":
         check_pdf(report, record, extras["data"], extras["attachments"])
     _check_standard(report, record, cases)
     check_derived(report, record, cases)

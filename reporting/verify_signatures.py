@@ -71,6 +71,9 @@ def trust_problem(
     from pyhanko_certvalidator import CertificateValidator, ValidationContext
     from pyhanko_certvalidator.errors import PathBuildingError, PathValidationError, ValidationError
 
+    listed = any(cert_fingerprint(a) == cert_fingerprint(cert) for a in anchors)
+    if cert.issuer == cert.subject and not listed:
+        return "not trusted: a self-signed certificate that is not on the trust list", ""
     context = ValidationContext(
         trust_roots=[_asn1(a) for a in anchors],
         other_certs=[_asn1(c) for c in chain],
@@ -90,7 +93,7 @@ def trust_problem(
         return f"not trusted: {err}", ""
     name = path.trust_anchor.authority.name
     anchor = name.native.get("common_name") or name.human_friendly
-    if any(cert_fingerprint(a) == cert_fingerprint(cert) for a in anchors):
+    if listed:
         return None, "trusted (on the trust list itself)"
     return None, f"trusted (issued under {anchor})"
 
@@ -216,7 +219,7 @@ def check_signatures(
                     f"signature with {by_role[role].get('cert_sha256', '')[:16]}...",
                 )
         if anchors is not None and not signed and not any(e.get("signed") for e in entries):
-            report.add("signatures", False, "--trust given, but the PDF carries no signature")
+            report.add("signatures", False, "--trust given, but the PDF carries no valid signature")
         return
     _detached(report, path, record, anchors, compare=True)
     if anchors is not None and not any(e.get("signed") for e in entries):

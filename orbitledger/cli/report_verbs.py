@@ -127,7 +127,7 @@ def _run_sign(args: argparse.Namespace) -> int:
     ledger = _open_ledger(args)
     done = sign(
         ledger, args.record_id, args.rev, args.role, args.name,
-        signer=signer, note=args.note or "", tsa_url=getattr(args, "tsa", None),
+        signer=signer, note=args.note or "",
     )  # fmt: skip
     org = f" ({done.org})" if done.org else ""
     print(
@@ -139,7 +139,7 @@ def _run_sign(args: argparse.Namespace) -> int:
         print("  UNSIGNED: a typed name without a key; records and verify show it as unsigned")
     print(f"  refers to record.html SHA-256 {done.artifact_sha256}")
     for name, path in done.files.items():
-        print(f"  {name:<22}{path}")
+        print(f"  {name:<25} {path}")
     for message in done.messages:
         print(f"orbitledger: {message}", file=sys.stderr)
     return 0
