@@ -8,7 +8,6 @@ embedded data: verify must find each change (a check that differs), and say wher
 
 from __future__ import annotations
 
-import io
 import json
 import re
 from collections.abc import Callable
@@ -16,7 +15,6 @@ from collections.abc import Callable
 import pytest
 from _record_study import simulated_run, write_study
 from orbitledger.reporting.build import record_run
-from orbitledger.reporting.render_pdf import find_browser
 from orbitledger.reporting.verify import verify_file
 
 from orbitledger.cli.main import main
