@@ -171,3 +171,41 @@ def test_script_policy_has_no_unsafe_inline(built):
         for b in bodies
     }
     assert set(directives["script-src"]) == hashes
+
+
+def _build_with_figure(tmp_path, model):
+    """Build the test study with its figure output replaced by ``model``'s bundle."""
+    import nbformat
+
+    from orbitledger.figures.show import figure_bundle
+
+    study = write_study(tmp_path / "study")
+    executed, manifest = simulated_run(study)
+    bundle = json.loads(json.dumps(figure_bundle(model, "altitude", "Altitude"), sort_keys=True))
+    code = [c for c in executed.cells if c.cell_type == "code"]
+    code[1].outputs = [nbformat.v4.new_output("display_data", data=bundle)]
+    return record_run(study, executed, manifest, ledger_dir=tmp_path / "ledger")
+
+
+def test_a_figure_with_a_customjs_callback_is_refused_at_build(tmp_path):
+    from bokeh.models import CustomJS
+    from bokeh.plotting import figure
+    from orbitledger.reporting.build import BuildError
+
+    fig = figure(width=300, height=200)
+    fig.line([0, 1], [0, 1])
+    fig.js_on_event("tap", CustomJS(code="alert(1)"))
+    with pytest.raises(BuildError, match="CustomJS"):
+        _build_with_figure(tmp_path, fig)
+    assert not list((tmp_path / "ledger").rglob("record.html"))  # nothing written
+
+
+def test_raw_html_in_a_div_is_cleaned_at_build_and_the_record_verifies(tmp_path):
+    # The XSS probe of OWASP's XSS Filter Evasion Cheat Sheet: an image whose error handler runs.
+    from bokeh.models import Div
+
+    outcome = _build_with_figure(tmp_path, Div(text="<img src=x onerror=alert(1)>"))
+    html = outcome.files["html"].read_text(encoding="utf-8")
+    assert "alert(1)" not in html and "onerror=alert" not in html  # BokehJS has "assertionerror="
+    report = verify_file(outcome.files["html"])
+    assert report.ok, report.text()
