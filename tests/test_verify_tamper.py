@@ -8,6 +8,7 @@ embedded data: verify must find each change (a check that differs), and say wher
 
 from __future__ import annotations
 
+import io
 import json
 import re
 from collections.abc import Callable
@@ -209,3 +210,66 @@ def test_raw_html_in_a_div_is_cleaned_at_build_and_the_record_verifies(tmp_path)
     assert "alert(1)" not in html and "onerror=alert" not in html  # BokehJS has "assertionerror="
     report = verify_file(outcome.files["html"])
     assert report.ok, report.text()
+
+
+# The PDF part without a browser (as test_verify does): the record attached to a one-page PDF
+# made by pypdf. Its blank page already differs in two checks (footer, text); each tampering
+# after the build must make at least one more check differ, naming it.
+_BLANK_DIFFS = {"PDF pages: the 1 the build printed, unchanged", "PDF text: as the record says"}
+
+
+@pytest.fixture(scope="module")
+def pdf_bytes(built):
+    from orbitledger.reporting.render_pdf import attach
+    from pypdf import PdfWriter
+
+    record = json.loads(built.files["json"].read_text())
+    blank = io.BytesIO()
+    writer = PdfWriter()
+    writer.add_blank_page(595, 842)
+    writer.write(blank)
+    return attach(blank.getvalue(), record, built.files["notebook"].read_bytes())
+
+
+def _incremental(data: bytes, edit) -> bytes:
+    from pypdf import PdfWriter
+
+    writer = PdfWriter(io.BytesIO(data), incremental=True)
+    edit(writer)
+    out = io.BytesIO()
+    writer.write(out)
+    return out.getvalue()
+
+
+def _annotate(w):
+    from pypdf.annotations import FreeText
+
+    w.add_annotation(0, FreeText(text="DECISION AMENDED", rect=(50, 700, 300, 750)))
+
+
+def _attach_extra(w):
+    w.add_attachment("extra.txt", b"not from the build")
+
+
+def _other_revision(w):
+    w.add_metadata({"/OrbitLedgerRevision": "2"})
+
+
+_PDF_TAMPERS = [
+    ("an annotation added", _annotate),
+    ("an extra attachment", _attach_extra),
+    ("metadata naming another revision", _other_revision),
+    ("an incremental update appended", lambda w: w.add_metadata({"/Subject": "amended"})),
+]
+
+
+@pytest.mark.parametrize(("what", "edit"), _PDF_TAMPERS, ids=[t[0] for t in _PDF_TAMPERS])
+def test_each_pdf_tampering_after_the_build_is_named(pdf_bytes, tmp_path, what, edit):
+    good = tmp_path / "good.pdf"
+    good.write_bytes(pdf_bytes)
+    assert {c.what for c in verify_file(good).checks if not c.ok} == _BLANK_DIFFS
+    bad = tmp_path / "bad.pdf"
+    bad.write_bytes(_incremental(pdf_bytes, edit))
+    report = verify_file(bad)
+    assert not report.ok
+    assert {c.what for c in report.checks if not c.ok} - _BLANK_DIFFS, (what, report.text())
