@@ -48,11 +48,14 @@ __all__ = [
 STATEMENT_SCHEMA = "orbitledger.signoff/1"
 SIGNATURES_SCHEMA = "orbitledger.signatures/1"
 # What a sign-off does not cover: the list of sign-offs itself and the status it implies.
-_NOT_SIGNED = ("signoffs", "status")
+# What differs between the copies of one revision: the sign-offs and the status, and what the
+# copy's page shows of them (the page's text and the fingerprints of what is shown, which
+# verify checks against each copy's own page).
+_NOT_SIGNED = ("signoffs", "status", "page", "shown_fingerprints")
 
 
 def record_content_sha256(record: dict[str, Any]) -> str:
-    """SHA-256 of the canonical JSON of ``record`` without ``signoffs`` and ``status``."""
+    """SHA-256 of the canonical JSON of ``record`` without what differs between its copies."""
     return fingerprint_of({k: v for k, v in record.items() if k not in _NOT_SIGNED})
 
 

@@ -116,12 +116,18 @@ def _check_metadata(report: Any, record: dict[str, Any], reader: Any) -> None:
     report.add("PDF metadata: agrees with the record", not wrong, "; ".join(wrong[:2]))
 
 
+def _same(ref: Any, other: Any) -> bool:
+    """One object: a ``Reference`` of the xref table and an ``IndirectObject`` of a trailer."""
+    key = lambda r: (getattr(r, "idnum", None), getattr(r, "generation", None))  # noqa: E731
+    return other is not None and key(ref) == key(other)
+
+
 def _kind(resolver: Any, ref: Any, catalog_ref: Any, info_ref: Any, acroform_ref: Any) -> str:
-    if ref == catalog_ref:
+    if _same(ref, catalog_ref):
         return "/Catalog"
-    if ref == info_ref:
+    if _same(ref, info_ref):
         return "/Info"
-    if ref == acroform_ref:
+    if _same(ref, acroform_ref):
         return "/AcroForm"
     obj = resolver(ref).get_object()
     if isinstance(obj, list):

@@ -39,10 +39,16 @@ def test_pdf_carries_metadata_and_attachments(pdf):
     assert meta.title == "Kestrel-2 record test study (KES2-ORB-001 rev 1)"
     assert meta["/OrbitLedgerRecordId"] == "KES2-ORB-001" and meta["/OrbitLedgerRevision"] == "1"
     attachments = reader.attachments
-    assert set(attachments) == {"record.json", "notebook.ipynb", "case-candidate-a.case.json"}
+    assert set(attachments) == {
+        "record.json",
+        "notebook.ipynb",
+        "case-candidate-a.case.json",
+        "pages.json",
+    }
     record = json.loads(attachments["record.json"][0])
     assert record["revision"] == 1
-    assert verify_file(pdf).ok
+    report = verify_file(pdf)
+    assert report.ok, report.text()
 
 
 def test_every_page_has_the_footer_and_a_page_number(pdf):

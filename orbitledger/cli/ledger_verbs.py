@@ -36,6 +36,8 @@ def _revision(text: str) -> int:
 
 
 def _signoff_line(s: dict) -> str:
+    if "signed" not in s:  # the ledger's row alone (no signed copy with entries to read)
+        return f"{s['role']} by {s['name']} at {s['time_utc']}"
     state = {True: "signed", False: "UNSIGNED"}.get(s["signed"], f"unknown: {s.get('problem')}")
     org = f" ({s['org']})" if s.get("org") else ""
     cert = f", certificate SHA-256 {s['cert_sha256'][:16]}..." if s.get("cert_sha256") else ""
@@ -61,7 +63,8 @@ def _run_history(args: argparse.Namespace) -> int:
         if r["signoffs"]:  # signed or unsigned, name and certificate: from the signed copy
             by_role = {s["role"]: s for s in r["signoffs"]}
             summaries = signoff_summaries(ledger, args.record_id, r["revision"])
-            r["signoffs"] = [{**by_role.get(x["role"], {}), **x} for x in summaries]
+            if [x["role"] for x in summaries if x["role"] in by_role] == list(by_role):
+                r["signoffs"] = [{**by_role.get(x["role"], {}), **x} for x in summaries]
     if args.json:
         doc = {"ledger": ledger.address, "record_id": args.record_id, "revisions": rows}
         json.dump(doc, sys.stdout, indent=2, ensure_ascii=False)
