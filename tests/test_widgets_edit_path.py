@@ -31,7 +31,7 @@ R_EQ_KM = 6378.137  # WGS-84 (NIMA TR8350.2, Table 3.1)
 @pytest.fixture
 def starter_path(tmp_path: Path) -> Path:
     path = tmp_path / "starter.case.json"
-    orbitledger.open_case(path)  # a missing file is created with the starter case
+    orbitledger.open_case(path, create=True)  # the starter case, written explicitly
     return path
 
 
