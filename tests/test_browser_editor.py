@@ -45,7 +45,7 @@ def write_notebook(folder: Path) -> None:
         "outputs": [],
         "source": [
             "import orbitledger\n",
-            'editor = orbitledger.open_case("starter.case.json").editor()\n',
+            'editor = orbitledger.open_case("starter.case.json", create=True).editor()\n',
             "editor",
         ],
     }
