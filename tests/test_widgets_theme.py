@@ -38,7 +38,7 @@ def _papers(editor: CaseEditor) -> list[float]:
 @pytest.fixture
 def starter(tmp_path: Path) -> Path:
     path = tmp_path / "starter.case.json"
-    orbitledger.open_case(path)  # a missing file is created with the starter case
+    orbitledger.open_case(path, create=True)  # the starter case, written explicitly
     return path
 
 
