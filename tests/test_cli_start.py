@@ -56,8 +56,8 @@ def test_summary_imports_no_scipy_figures_or_reporting():
 def test_the_kernel_imports_its_modules_on_first_use():
     code = "import orbitledger.kernel.constants"
     assert "scipy" not in _top_level_modules_after(code)
-    code = "from orbitledger.kernel import lifetime_years, lambert, InputError"
-    assert "scipy" in _top_level_modules_after(code)  # the lifetime integrator's
+    code = "from orbitledger.kernel import propagate_cowell, lambert, InputError"
+    assert "scipy" in _top_level_modules_after(code)  # the numerical integrator's (solve_ivp)
 
 
 def test_every_public_kernel_name_resolves():
