@@ -22,7 +22,7 @@ from pathlib import Path
 
 import pytest
 from orbitledger.reporting.ledger import Ledger, SignOff
-from orbitledger.reporting.ledger_schema import SQLITE_MIGRATIONS
+from orbitledger.reporting.ledger_schema import SCHEMA_VERSION, SQLITE_MIGRATIONS
 
 from orbitledger.kernel.errors import InputError
 
@@ -50,7 +50,7 @@ def test_a_new_ledger_has_the_current_schema_and_refuses_updates(tmp_path):
     ledger = Ledger(tmp_path / "ledger")
     _commit(ledger)
     db = sqlite3.connect(tmp_path / "ledger" / "index.sqlite")
-    assert db.execute("PRAGMA user_version").fetchone() == (2,)
+    assert db.execute("PRAGMA user_version").fetchone() == (SCHEMA_VERSION,)
     for sql in (
         "UPDATE revisions SET note = 'x'",
         "DELETE FROM artifacts",
@@ -102,7 +102,7 @@ def test_a_version_1_ledger_is_migrated_in_order(tmp_path):
     ledger = Ledger(folder)
     assert [(r.revision, r.status) for r in ledger.revisions(RID)] == [(1, "checked")]
     assert sqlite3.connect(folder / "index.sqlite").execute("PRAGMA user_version").fetchone() == (
-        2,
+        SCHEMA_VERSION,
     )
     assert not (folder / "records" / RID / "r0002").exists()  # moved to .abandoned
     assert ledger.check() == []
@@ -114,7 +114,7 @@ def test_a_newer_schema_is_refused_naming_both_versions(tmp_path):
     db = sqlite3.connect(tmp_path / "ledger" / "index.sqlite")
     db.execute("PRAGMA user_version = 7")
     db.close()
-    with pytest.raises(InputError, match="schema version 7 is newer than version 2"):
+    with pytest.raises(InputError, match=f"schema version 7 is newer than version {SCHEMA_VERSION}"):
         Ledger(tmp_path / "ledger")
 
 

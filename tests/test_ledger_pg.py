@@ -193,8 +193,41 @@ def test_a_newer_schema_version_is_refused_naming_both(pg_url):
     open_ledger(pg_url)
     with connect_admin(pg_url) as conn:
         conn.execute("INSERT INTO orbitledger.schema_version VALUES (9, 'future')")
-    with pytest.raises(InputError, match="schema version 9 is newer than version 2"):
+    with pytest.raises(InputError, match="schema version 9 is newer than version 3"):
         open_ledger(pg_url)
+
+
+def test_artifacts_are_stored_lz4_compressed_when_the_server_has_lz4(pg_url):
+    # PostgreSQL 15 documentation, "Database Object Size Functions": pg_column_compression()
+    # names the method a stored value was compressed with (NULL when stored uncompressed).
+    # Debian's server is built with LZ4 (pg_config --configure lists --with-lz4); a server
+    # without it keeps pglz, as the migration says.
+    ledger = open_ledger(pg_url)
+    page = b"<html>" + b"<p>Kestrel-2 orbit study</p>" * 4000 + b"</html>"  # compressible
+    _commit(ledger, page)
+    with connect_admin(pg_url) as conn:
+        (versions,) = conn.execute(
+            "SELECT array_agg(version ORDER BY version) FROM orbitledger.schema_version"
+        ).fetchone()
+        (method,) = conn.execute(
+            "SELECT pg_column_compression(data) FROM orbitledger.artifacts WHERE name = 'record.html'"
+        ).fetchone()
+    assert versions == [2, 3]
+    assert method == ("lz4" if _server_has_lz4(pg_url) else "pglz")
+    (html,) = [a for a in ledger.artifacts(RID, 1) if a.name == "record.html"]
+    assert ledger.read_artifact(html) == page and ledger.check() == []
+
+
+def _server_has_lz4(url: str) -> bool:
+    """Whether the server accepts LZ4 (PostgreSQL 15 docs: default_toast_compression)."""
+    import psycopg
+
+    with connect_admin(url) as conn:
+        try:
+            conn.execute("SET default_toast_compression = 'lz4'")
+        except psycopg.Error:  # "invalid value for parameter": built without LZ4
+            return False
+    return True
 
 
 def test_reading_verbs_do_not_create_a_ledger(pg_url):
