@@ -21,6 +21,7 @@ from __future__ import annotations
 import argparse
 import contextlib
 import io
+import json
 import os
 import shutil
 import subprocess
@@ -72,7 +73,7 @@ def _fill(ledger, revisions: int) -> None:
                                                         "result dv_total_km_s changed"]}],
             }  # fmt: skip
             w.write("record.html", b"<html>%d</html>" % n)
-            w.write("record.json", str(record).encode())
+            w.write("record.json", json.dumps(record).encode())
             w.commit(record)
         if n % 10 == 0:
             for role in ("checked", "approved"):

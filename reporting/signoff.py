@@ -199,19 +199,32 @@ def signoff_summaries(ledger: Ledger, record_id: str, revision: int) -> list[dic
     )
     artifact = artifacts.get(name)
     entries = None
+    problem = f"{name} differs from the ledger's SHA-256"
     if artifact is not None:
         try:
             data = ledger.read_artifact(artifact)
         except OSError:
             data = b""
         if sha256_hex(data) == artifact.sha256:
-            entries = json.loads(data).get("signoffs", [])
+            entries = _signoff_entries(data)
+            problem = f"{name} holds no readable sign-off list"
     keys = ("role", "name", "org", "time_utc", "signed", "cert_sha256", "note")
     if entries is not None:
         return [{k: e.get(k, "") for k in keys} for e in entries]
-    problem = f"{name} differs from the ledger's SHA-256"
     return [
         {"role": s.role, "name": s.name, "org": "", "time_utc": s.time_utc, "signed": None,
          "cert_sha256": "", "note": "", "problem": problem}
         for s in rows
     ]  # fmt: skip
+
+
+def _signoff_entries(data: bytes) -> list[dict] | None:
+    """The ``signoffs`` list of a record's JSON, or None when the bytes are not such a record."""
+    try:
+        record = json.loads(data)
+    except (UnicodeDecodeError, ValueError):
+        return None
+    entries = record.get("signoffs", []) if isinstance(record, dict) else None
+    if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
+        return None
+    return entries

@@ -247,3 +247,22 @@ def test_a_full_disk_gives_one_line_and_leaves_the_ledger_as_it_was(tmp_path):
     assert [r.revision for r in ledger.revisions(RID)] == [1]
     assert ledger.check() == []
     assert not (ledger_dir / "records" / RID / "r0002").exists()
+
+
+def test_history_names_a_record_json_that_is_not_a_record(tmp_path, capsys):
+    # Common practice: a reading verb reports a damaged archive entry and goes on; it does not
+    # stop with a traceback. The bytes match the ledger's hash, so they were stored so at build.
+    from orbitledger.cli.main import main
+
+    ledger = Ledger(tmp_path / "ledger")
+    with ledger.new_revision(RID) as w:
+        w.write("record.html", b"<html>r</html>")
+        w.write("record.json", b"{'record_id': 'not JSON'}")  # a Python repr, not JSON
+        w.commit(_record(w.revision))
+    html = next(a for a in ledger.artifacts(RID, 1) if a.name == "record.html")
+    ledger.add_signoff(RID, 1, SignOff("checked", "C. Checker", "2026-01-02T00:00:00Z", html.sha256),
+                       {"record-checked.html": b"copy"}, "checked")  # fmt: skip
+    assert main(["history", RID, "--ledger", str(tmp_path / "ledger")]) == 0
+    out = capsys.readouterr().out
+    assert "checked by C. Checker" in out
+    assert "unknown: record.json holds no readable sign-off list" in out
