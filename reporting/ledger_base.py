@@ -274,6 +274,18 @@ class LedgerBase(ABC):
         names = {a.name: a for a in self.artifacts(record_id, revision)}
         return _latest(names, self.signoffs(record_id, revision))
 
+    def record_artifacts(self, record_id: str) -> dict[int, dict[str, Artifact]]:
+        """The ``record*`` artifacts of every revision of a record, by revision and name (one query)."""
+        names: dict[int, dict[str, Artifact]] = {}
+        for row in self._query(
+            f"SELECT record_id, revision, name, {self._RELPATH}, sha256, size, created_utc"
+            " FROM artifacts WHERE record_id = ? AND name LIKE 'record%'",
+            (record_id,),
+        ):
+            a = Artifact(*row)
+            names.setdefault(a.revision, {})[a.name] = a
+        return names
+
     def history(self, record_id: str) -> list[dict[str, Any]]:
         """Every committed revision: status, sign-offs, changes, latest state (JSON-ready).
 
@@ -283,14 +295,7 @@ class LedgerBase(ABC):
         revisions = self.revisions(record_id)
         signoffs = self.record_signoffs(record_id)
         changes = self.record_changes(record_id)
-        names: dict[int, dict[str, Artifact]] = {}
-        for row in self._query(
-            f"SELECT record_id, revision, name, {self._RELPATH}, sha256, size, created_utc"
-            " FROM artifacts WHERE record_id = ? AND name LIKE 'record%'",
-            (record_id,),
-        ):
-            a = Artifact(*row)
-            names.setdefault(a.revision, {})[a.name] = a
+        names = self.record_artifacts(record_id)
         rows = []
         for r in revisions:
             signed = signoffs.get(r.revision, [])

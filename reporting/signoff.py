@@ -184,15 +184,26 @@ def sign(
     )
 
 
-def signoff_summaries(ledger: Ledger, record_id: str, revision: int) -> list[dict[str, Any]]:
+def signoff_summaries(
+    ledger: Ledger,
+    record_id: str,
+    revision: int,
+    *,
+    artifacts: dict[str, Any] | None = None,
+    signoffs: list[Any] | None = None,
+) -> list[dict[str, Any]]:
     """Role, name, organisation, time, certificate SHA-256 and signed/unsigned of each
     sign-off of a revision, read from its latest signed copy (checked against the ledger).
 
     When that copy differs from the ledger's hash, the ledger's rows are given with
-    ``"signed": None`` and a ``problem``.
+    ``"signed": None`` and a ``problem``. A caller listing many revisions passes what it has
+    read already: the revision's ``record*`` ``artifacts`` by name and its ``signoffs``.
     """
-    artifacts = {a.name: a for a in ledger.artifacts(record_id, revision)}
-    rows = sorted(ledger.signoffs(record_id, revision), key=lambda s: ROLES.index(s.role))
+    if artifacts is None:
+        artifacts = {a.name: a for a in ledger.artifacts(record_id, revision)}
+    if signoffs is None:
+        signoffs = ledger.signoffs(record_id, revision)
+    rows = sorted(signoffs, key=lambda s: ROLES.index(s.role))
     name = next(
         (f"record-{s.role}.json" for s in reversed(rows) if f"record-{s.role}.json" in artifacts),
         "record.json",

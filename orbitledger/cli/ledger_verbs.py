@@ -59,10 +59,15 @@ def _run_history(args: argparse.Namespace) -> int:
         by_rev = {h["revision"]: h.get("changes", []) for h in kept}
         for r in rows:
             r["changes"] = by_rev.get(r["revision"], [])
+    names = ledger.record_artifacts(args.record_id) if any(r["signoffs"] for r in rows) else {}
+    signed = ledger.record_signoffs(args.record_id) if names else {}
     for r in rows:
         if r["signoffs"]:  # signed or unsigned, name and certificate: from the signed copy
             by_role = {s["role"]: s for s in r["signoffs"]}
-            summaries = signoff_summaries(ledger, args.record_id, r["revision"])
+            summaries = signoff_summaries(
+                ledger, args.record_id, r["revision"],
+                artifacts=names.get(r["revision"], {}), signoffs=signed.get(r["revision"], []),
+            )  # fmt: skip
             if [x["role"] for x in summaries if x["role"] in by_role] == list(by_role):
                 r["signoffs"] = [{**by_role.get(x["role"], {}), **x} for x in summaries]
     if args.json:
