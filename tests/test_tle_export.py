@@ -103,6 +103,7 @@ def test_refit_of_a_published_tle_recovers_its_elements(tmp_path, capsys):
                              "--fit-days", 0.25)  # fmt: skip
     assert code == 0, err
     fitted, published = parse_tle(stdout), parse_tle("\n".join(PUBLISHED[1:]))
+    assert fitted.name == "DELTA 1 DEB"  # the imported TLE's line 0
     assert fitted.epoch_utc == published.epoch_utc
     assert fitted.i_deg == pytest.approx(published.i_deg, abs=1e-3)
     assert fitted.raan_deg == pytest.approx(published.raan_deg, abs=1e-3)

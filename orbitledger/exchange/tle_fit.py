@@ -129,8 +129,8 @@ def fit_tle(
 ) -> TleFit:
     """Fit SGP4 mean elements to ``case``'s trajectory over ``span_s`` from its window start.
 
-    ``catalog_number`` (five digits) and ``name`` (line 0; default the spacecraft's name,
-    upper case, at most 24 characters) label the element set. Raises ``InputError`` for a span
+    ``catalog_number`` (five digits) and ``name`` (line 0; default the spacecraft's name or
+    an imported TLE's name line, upper case, at most 24 characters) label the element set. Raises ``InputError`` for a span
     or step that is not positive, a span with fewer than 10 epochs, or an orbit that is not
     an ellipse.
     """
@@ -142,9 +142,10 @@ def fit_tle(
         raise InputError("step", step_s, "must be a positive number of seconds")
     if span_s / step_s < 9.0:
         raise InputError("span", span_s, f"holds fewer than 10 epochs at a {step_s:g} s step")
-    if name is None:
-        sc = case.spacecraft
-        name = (sc.name if sc is not None and sc.name else "").upper()[:24]
+    if name is None:  # the spacecraft's name, else an imported TLE's line 0
+        sc, source = case.spacecraft, case.source
+        name = sc.name if sc is not None and sc.name else getattr(source, "name", "") or ""
+        name = name.upper()[:24]
     traj = case_trajectory(case, duration_s=span_s)
     span = min(span_s, traj.end_s)
     t = np.arange(0.0, span, step_s)
