@@ -37,9 +37,14 @@ def fit_report(fit: Any) -> list[str]:
         f"{fit.residual_km.size} epochs every {fit.step_s:g} s over {fit.span_s / 86400.0:.3f} "
         f"day from {fit.times_utc[0]}, against the case's {fit.propagator} trajectory; "
         f"BSTAR {bstar}",
-        f"TLE fit residual: RMS {fit.rms_km * 1000:.1f} m, max {fit.max_km * 1000:.1f} m at "
+        f"TLE fit residual: RMS {_distance(fit.rms_km)}, max {_distance(fit.max_km)} at "
         f"{fit.max_at_utc} (osculating elements as a TLE: RMS {fit.initial_rms_km:.1f} km)",
     ]
+
+
+def _distance(km: float) -> str:
+    """Metres to 0.1 m below 10 km, km to the metre above."""
+    return f"{km * 1000.0:.1f} m" if km < 10.0 else f"{km:.3f} km"
 
 
 def run_tle_export(
