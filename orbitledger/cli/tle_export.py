@@ -31,7 +31,7 @@ def add_tle_options(parser: argparse.ArgumentParser) -> None:
 
 def fit_report(fit: Any) -> list[str]:
     """The fit's summary lines (span, model, RMS, largest residual)."""
-    bstar = "fitted" if fit.fitted_bstar else "0 (no drag in the case)"
+    bstar = "fitted" if fit.fitted_bstar else "0 (no drag in the case's model)"
     return [
         f"TLE fit: SGP4 (WGS-72) mean elements by least squares on TEME position, "
         f"{fit.residual_km.size} epochs every {fit.step_s:g} s over {fit.span_s / 86400.0:.3f} "

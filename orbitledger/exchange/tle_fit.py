@@ -12,7 +12,8 @@ fitted instead:
    with; Vallado, Crawford, Hujsak & Kelso 2006, AIAA 2006-6753), started from the osculating
    elements of the first state. The parameters are the non-singular set n, e cos w, e sin w,
    i, RAAN, w + M (near-circular orbits have no well-defined w); BSTAR joins them when the
-   case's numerical propagator includes drag, and is zero otherwise;
+   case's trajectory has drag (numerical with drag, or SGP4 from an imported TLE), and is
+   zero otherwise;
 3. the fitted elements written as a TLE (``tle_format.format_tle``, which rounds them to the
    format's columns), read back and propagated again: the residual reported is that of the
    written text, rounding included.
@@ -161,7 +162,8 @@ def fit_tle(
     epoch_jd = probe.epoch_jd_utc
     tsince = (float(traj.start.seconds_since(time_scales(epoch_jd))) + t) / 60.0
 
-    fit_bstar = case.force_model.propagator == "numerical" and case.force_model.drag
+    fm = case.force_model
+    fit_bstar = (fm.propagator == "numerical" and fm.drag) or fm.propagator == "sgp4"
     x0 = _initial(r_teme[0], v_teme[0])
     if fit_bstar:
         x0 = np.append(x0, 0.0)
