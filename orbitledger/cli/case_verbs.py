@@ -55,11 +55,22 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         help="write a starter case file",
         description=(
             "Write a valid starter case (the invented Kestrel-2 mission of the Fenwick Orbital "
-            "Lab, classical-elements form) to CASE. An existing file is never overwritten."
+            "Lab, classical-elements form) to CASE, with its own title, record id, altitude "
+            "and, with --sso-ltdn, the sun-synchronous inclination and the RAAN of that local "
+            "time of the descending node at the epoch. An existing file is never overwritten."
         ),
     )
     new.add_argument(
         "case", metavar="CASE", help="path of the new case file, e.g. candidate-a.case.json"
+    )
+    new.add_argument("--title", metavar="T", help="meta.title")
+    new.add_argument("--record-id", metavar="ID", help="meta.record_id (default KES2-ORB-001)")
+    new.add_argument("--altitude-km", type=float, metavar="H", help="orbit altitude, km")
+    new.add_argument(
+        "--sso-ltdn",
+        metavar="HH:MM",
+        help="sun-synchronous: inclination for the altitude, RAAN for this local mean solar "
+        "time of the descending node at the epoch",
     )
     new.set_defaults(run=run_new)
 
@@ -84,11 +95,22 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
 
 def run_new(args: argparse.Namespace) -> int:
-    from ..case import starter_case, write_new_case
+    from ..case import write_new_case
+    from ..case.new_case import new_case
 
-    case = starter_case()
+    case = new_case(
+        title=args.title,
+        record_id=args.record_id,
+        altitude_km=args.altitude_km,
+        sso_ltdn=args.sso_ltdn,
+    )
     write_new_case(args.case, case)
     print(f"wrote {args.case}: {case.meta.title} (fingerprint {case.fingerprint[:16]}...)")
+    if args.sso_ltdn is not None:
+        print(
+            f"sun-synchronous: i {case.orbit.i_deg:.4f} deg, RAAN {case.orbit.raan_deg:.4f} deg "
+            f"(descending node at {args.sso_ltdn} local mean solar time at {case.epoch_utc})"
+        )
     return 0
 
 

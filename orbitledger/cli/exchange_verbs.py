@@ -8,6 +8,9 @@ never overwritten.
 ephemeris over the analysis window as an OEM, or a CSV of its ephemeris, ground track, passes
 or eclipses; to stdout, or to FILE (never over an existing file unless ``--force``).
 
+``orbitledger export CASE --format tle [--out FILE] [--norad-id N] [--name NAME]``: SGP4 mean
+elements fitted to the case's trajectory (``exchange.tle_fit``), with the fit's residual.
+
 ``orbitledger ephemeris-diff CASE FILE.oem [--csv]``: an OEM against the case propagated to
 its epochs; position differences in RTN and their size.
 """
@@ -51,15 +54,17 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
     exp = subparsers.add_parser(
         "export",
-        help="write a case as a CCSDS OPM or OEM, or as CSV",
+        help="write a case as a CCSDS OPM or OEM, a TLE, or as CSV",
         description=(
             "Write CASE as a CCSDS OPM (its state), an OEM (its ephemeris over the analysis "
-            "window, GCRF, UTC) or CSV (--what: ephemeris, groundtrack, passes, eclipses). "
+            "window, GCRF, UTC), a TLE (SGP4 mean elements fitted by least squares to the "
+            "case's trajectory over --fit-days, with the fit's RMS and largest position "
+            "residual) or CSV (--what: ephemeris, groundtrack, passes, eclipses). "
             "Preliminary analysis with the stated models."
         ),
     )
     exp.add_argument("case", metavar="CASE", help="the case file (*.case.json)")
-    exp.add_argument("--format", required=True, choices=("opm", "oem", "csv"))
+    exp.add_argument("--format", required=True, choices=("opm", "oem", "tle", "csv"))
     exp.add_argument(
         "--what",
         default="ephemeris",
@@ -68,8 +73,11 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     )
     exp.add_argument("--step", type=float, metavar="S", help="oem only: step, s (default window)")
     exp.add_argument("--originator", default="orbitledger", help="ORIGINATOR of an OPM/OEM")
-    exp.add_argument("-o", "--output", metavar="FILE", help="write here instead of stdout")
+    exp.add_argument("-o", "--output", "--out", metavar="FILE", help="write here instead of stdout")
     exp.add_argument("--force", action="store_true", help="overwrite an existing FILE")
+    from .tle_export import add_tle_options
+
+    add_tle_options(exp)
     exp.set_defaults(run=run_export)
 
     diff = subparsers.add_parser(
@@ -203,6 +211,10 @@ def run_export(args: argparse.Namespace) -> int:
     from ..kernel.errors import InputError
 
     case = load_case(args.case)
+    if args.format == "tle":
+        from .tle_export import run_tle_export
+
+        return run_tle_export(args, case, _write, _with_file)
     try:
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")

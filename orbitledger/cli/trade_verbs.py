@@ -174,6 +174,15 @@ def _finish(frame: Any, args: argparse.Namespace, out, criteria, started: float)
         if passing and args.top:
             table = rank_candidates(frame, criteria, top=args.top)
             print(table.to_string(index=False))
+        if frame.attrs["kind"] == "sweep" and len(frame):
+            from ..trade.statistics import criteria_margins, margin_lines
+
+            print("\n".join(margin_lines(criteria_margins(frame, criteria))))
+    if frame.attrs["kind"] == "monte-carlo":
+        from ..trade.statistics import metric_statistics, statistics_table
+
+        print("statistics over the runs (std: sample, ddof 1; percentiles: linear, type 7):")
+        print(statistics_table(metric_statistics(frame, criteria)))
     groups = frame.attrs.get("groups", [])
     if "lifetime" in groups or "budget" in groups:
         from ..kernel.lifetime import LIFETIME_CAUTION

@@ -13,6 +13,8 @@ from .importing import ImportedCase, opm_case, tle_case
 from .oem import Oem, OemSegment, oem_text, parse_oem
 from .opm import Opm, OpmManeuver, opm_state_gcrf, parse_opm
 from .opm_export import opm_text
+from .tle_fit import TleFit, fit_tle
+from .tle_format import format_tle
 from .tle import (
     SGP4_ERROR_WORDS,
     TleEpochWarning,
@@ -35,11 +37,14 @@ __all__ = [
     "Opm",
     "OpmManeuver",
     "TleEpochWarning",
+    "TleFit",
     "TwoLineElements",
     "case_csv",
     "case_tle_trajectory",
     "columns_csv",
     "ephemeris_difference",
+    "fit_tle",
+    "format_tle",
     "oem_text",
     "opm_case",
     "opm_state_gcrf",

@@ -17,7 +17,7 @@ import erfa
 from ..kernel.errors import InputError
 from ..kernel.timescales import utc_iso
 
-__all__ = ["TwoLineElements", "parse_tle", "tle_checksum"]
+__all__ = ["TwoLineElements", "format_tle", "parse_tle", "tle_checksum", "tle_epoch_field"]
 
 
 # (name, first column, last column) of each field, 1-based inclusive, per line.
@@ -241,3 +241,94 @@ def parse_tle(text: str) -> TwoLineElements:
         element_set_number=int(set_text) if set_text.isdigit() else 0,
         revolution_number=int(rev_text) if rev_text.isdigit() else 0,
     )
+
+
+# --- writing -------------------------------------------------------------------------------
+
+
+def tle_epoch_field(jd1_utc: float, jd2_utc: float) -> str:
+    """Columns 19-32 of line 1, ``YYDDD.DDDDDDDD``: the UTC epoch rounded to 1e-8 day."""
+    year = int(erfa.jd2cal(jd1_utc, jd2_utc)[0])
+    if not 1957 <= year <= 2056:
+        raise InputError("epoch", year, "lies outside the TLE's two-digit years 1957-2056")
+    jan1 = float(sum(erfa.cal2jd(year, 1, 1)))
+    units = round(((jd1_utc - jan1) + jd2_utc + 1.0) * 1e8)  # day of year in 1e-8 day
+    days_in_year = 366 if (year % 4 == 0 and (year % 100 != 0 or year % 400 == 0)) else 365
+    if units >= (days_in_year + 1) * 10**8:  # rounded up into the next year
+        year, units = year + 1, units - days_in_year * 10**8
+    return f"{year % 100:02d}{units // 10**8:03d}.{units % 10**8:08d}"
+
+
+def _assumed_decimal_text(value: float, where: str) -> str:
+    """0.28098e-4 -> ' 28098-4' (8 columns: sign, five digits, exponent sign and digit)."""
+    if value == 0.0:
+        return " 00000+0"
+    exponent = math.floor(math.log10(abs(value))) + 1
+    digits = round(abs(value) / 10.0**exponent * 1e5)
+    if digits == 100_000:
+        digits, exponent = 10_000, exponent + 1
+    if not -9 <= exponent <= 9:
+        raise InputError(where, value, "does not fit the TLE's one-digit exponent")
+    sign = "-" if value < 0 else " "
+    return f"{sign}{digits:05d}{'-' if exponent < 0 else '+'}{abs(exponent)}"
+
+
+def _with_checksum(line: str) -> str:
+    assert len(line) == 68, line
+    return line + str(tle_checksum(line))
+
+
+def format_tle(
+    *,
+    catalog_number: int,
+    epoch_jd_utc: tuple[float, float],
+    mean_motion_rev_day: float,
+    e: float,
+    i_deg: float,
+    raan_deg: float,
+    argp_deg: float,
+    mean_anomaly_deg: float,
+    bstar_per_earth_radius: float = 0.0,
+    name: str = "",
+    classification: str = "U",
+    international_designator: str = "",
+    element_set_number: int = 1,
+    revolution_number: int = 0,
+) -> str:
+    """The element set as text: an optional name line, then lines 1 and 2, each ending "\n".
+
+    Columns and checksums as CelesTrak's "NORAD Two-Line Element Set Format" describes them
+    (after Spacetrack Report No. 3): angles to 1e-4 deg, eccentricity to 1e-7, mean motion to
+    1e-8 rev/day, the epoch to 1e-8 day. The derivatives of the mean motion are written as zero
+    (SGP4 does not use them). ``parse_tle`` reads the result back.
+    """
+    if not 0 <= catalog_number <= 99_999:
+        raise InputError("catalog number", catalog_number, "must be 0 to 99999 (five digits)")
+    if len(name) > 24 or not name.isascii():
+        raise InputError("name", name, "must be at most 24 ASCII characters (TLE line 0)")
+    if len(international_designator) > 8:
+        raise InputError("international designator", international_designator, "exceeds 8 columns")
+    if not 0.0 <= e < 1.0:
+        raise InputError("eccentricity", e, "must lie in [0, 1)")
+    if not 0.0 < mean_motion_rev_day < 100.0:
+        raise InputError("mean motion", mean_motion_rev_day, "must lie in (0, 100) rev/day")
+    ecc = round(e * 1e7)
+    if ecc >= 10**7:
+        raise InputError("eccentricity", e, "rounds to 1 in seven digits")
+    if not 0.0 <= i_deg <= 180.0:
+        raise InputError("inclination", i_deg, "must lie in [0, 180] deg")
+    angles = [f"{i_deg:8.4f}"] + [
+        f"{round(x % 360.0, 4) % 360.0:8.4f}" for x in (raan_deg, argp_deg, mean_anomaly_deg)
+    ]
+    line1 = (
+        f"1 {catalog_number:05d}{classification} {international_designator:<8} "
+        f"{tle_epoch_field(*epoch_jd_utc)}  .00000000  00000+0 "
+        f"{_assumed_decimal_text(bstar_per_earth_radius, 'BSTAR')} 0 "
+        f"{element_set_number % 10_000:4d}"
+    )
+    line2 = (
+        f"2 {catalog_number:05d} {angles[0]} {angles[1]} {ecc:07d} {angles[2]} {angles[3]} "
+        f"{mean_motion_rev_day:11.8f}{revolution_number % 100_000:5d}"
+    )
+    head = f"{name}\n" if name else ""
+    return f"{head}{_with_checksum(line1)}\n{_with_checksum(line2)}\n"
