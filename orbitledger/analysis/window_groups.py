@@ -166,6 +166,7 @@ def lifetime_results(case: Any) -> list[Result]:
     if case.spacecraft is None or not _closed_orbit(case):
         return []
     from ..kernel.lifetime import lifetime_years
+    from .flux_scenario import case_density_profile
 
     elements = case.elements()
     reentry = (
@@ -179,6 +180,7 @@ def lifetime_results(case: Any) -> list[Result]:
         solar_activity=case.force_model.solar_activity,
         reentry_altitude_km=reentry,
         body=case.body_constants(),
+        density=case_density_profile(case),
     )
     return [
         Result(
@@ -187,7 +189,7 @@ def lifetime_results(case: Any) -> list[Result]:
             "yr",
             f"Orbital lifetime until the perigee is {reentry:g} km above the ellipsoid "
             f"(at the orbit's mean latitude) under drag ({life.method}, "
-            f"{life.solar_activity} solar activity)",
+            f"{life.density_model}; {life.flux_scenario})",
             "lifetime",
             rel_tol=1e-6,
             caution=life.caution,

@@ -1,0 +1,199 @@
+"""A case's density: the model it names and its flux scenario, as a kernel density profile.
+
+``force_model.density_model`` chooses NRLMSIS 2.1 (default; ``orbitledger.kernel.nrlmsis``,
+driven by ``force_model.flux_scenario``) or the fast exponential atmosphere at
+``force_model.solar_activity`` (``orbitledger.kernel.atmosphere``). Without a flux scenario,
+NRLMSIS runs at the constant ECSS-E-ST-10-04C level named by ``solar_activity``.
+
+A table scenario reads the analyst's CSV file: a header line ``date_utc,f107_sfu,f107a_sfu,ap``
+(columns in any order, more columns ignored), then one row per date in increasing order
+(``2027-01-01`` or ``2027-01-01T00:00:00Z``); blank lines and lines starting with ``#`` are
+skipped. A bad row is refused with one line naming the file, the line and the column.
+"""
+
+from __future__ import annotations
+
+import csv
+import functools
+import hashlib
+import math
+import os
+from typing import Any
+
+import numpy as np
+
+from ..kernel.density import DensityProfile, exponential_profile
+from ..kernel.errors import InputError
+from ..kernel.flux import (
+    FLUX_LEVELS,
+    FLUX_LIMITS,
+    FluxHistory,
+    constant_flux,
+    level_flux,
+    solar_cycle_flux,
+    table_flux,
+)
+
+__all__ = [
+    "CYCLE_25_MINIMUM_UTC",
+    "TABLE_COLUMNS",
+    "case_density_profile",
+    "case_flux_history",
+    "read_flux_table",
+    "scenario_profiles",
+]
+
+TABLE_COLUMNS = ("date_utc", "f107_sfu", "f107a_sfu", "ap")
+# The minimum that started solar cycle 25: December 2019 (NASA/NOAA Solar Cycle 25 Prediction
+# Panel, announcement of 15 September 2020); the middle of the month is taken.
+CYCLE_25_MINIMUM_UTC = "2019-12-15T00:00:00Z"
+
+
+def _jd(text: str) -> float:
+    from ..case.utc import utc_to_jd
+
+    stamp = text if "T" in text else f"{text}T00:00:00Z"
+    jd1, jd2 = utc_to_jd(stamp)
+    return jd1 + jd2
+
+
+@functools.lru_cache(maxsize=16)
+def _read_table(path: str, mtime_ns: int) -> tuple[np.ndarray, np.ndarray, str]:
+    del mtime_ns  # part of the cache key only: an edited file is read again
+    dates: list[float] = []
+    rows: list[list[float]] = []
+    try:
+        with open(path, newline="", encoding="utf-8") as handle:
+            raw = handle.read()
+    except (OSError, UnicodeDecodeError) as err:
+        raise InputError(
+            "force_model.flux_scenario.file", path, f"cannot be read ({err})"
+        ) from None
+    digest = hashlib.sha256(raw.encode("utf-8")).hexdigest()
+    lines = [
+        (n, t)
+        for n, t in enumerate(raw.splitlines(), 1)
+        if t.strip() and not t.lstrip().startswith("#")
+    ]
+    if not lines:
+        raise InputError("line 1", None, "the flux table is empty", file=path)
+    header_no, header = lines[0]
+    names = [c.strip().lower() for c in next(csv.reader([header]))]
+    for col in TABLE_COLUMNS:
+        if col not in names:
+            raise InputError(
+                f"line {header_no}", header, f"the header lacks the column {col!r}", file=path
+            )
+    where = {col: names.index(col) for col in TABLE_COLUMNS}
+    for number, text in lines[1:]:
+        cells = next(csv.reader([text]))
+        values = []
+        for col in TABLE_COLUMNS:
+            k = where[col]
+            cell = cells[k].strip() if k < len(cells) else ""
+            place = f"line {number}, column {col}"
+            if col == "date_utc":
+                try:
+                    jd = _jd(cell)
+                except (InputError, ValueError) as err:
+                    raise InputError(
+                        place, cell, str(getattr(err, "reason", err)), file=path
+                    ) from None
+                if dates and jd <= dates[-1]:
+                    raise InputError(place, cell, "dates must increase", file=path)
+                continue
+            try:
+                x = float(cell)
+            except ValueError:
+                raise InputError(place, cell, "not a number", file=path) from None
+            lo, hi = FLUX_LIMITS[col]
+            if not (math.isfinite(x) and lo <= x <= hi):
+                raise InputError(place, cell, f"must be within {lo:g}..{hi:g}", file=path)
+            values.append(x)
+        dates.append(jd)
+        rows.append(values)
+    if not rows:
+        raise InputError(f"line {header_no}", None, "the flux table has no rows", file=path)
+    return np.array(dates), np.array(rows), digest
+
+
+def read_flux_table(path: str | os.PathLike) -> tuple[np.ndarray, np.ndarray, str]:
+    """(dates as UTC Julian dates, rows of F10.7, F10.7a, Ap, sha256 of the file) of a flux
+    CSV (module docstring); cached per file and modification time."""
+    text = os.fspath(path)
+    try:
+        mtime = os.stat(text).st_mtime_ns
+    except OSError as err:
+        raise InputError(
+            "force_model.flux_scenario.file", text, f"cannot be read ({err.strerror})"
+        ) from None
+    return _read_table(text, mtime)
+
+
+def case_flux_history(case: Any) -> FluxHistory:
+    """The case's flux scenario as kernel nodes from the case epoch (module docstring)."""
+    fm = case.force_model
+    spec = fm.flux_scenario
+    if spec is None:
+        return level_flux(fm.solar_activity)
+    if spec.kind == "constant":
+        if spec.level is not None:
+            return level_flux(spec.level)
+        return constant_flux(
+            spec.f107_sfu, spec.f107a_sfu, spec.ap,
+            f"constant, F10.7 = {spec.f107_sfu:g} sfu, F10.7a = {spec.f107a_sfu:g} sfu, "
+            f"Ap = {spec.ap:g} (stated in the case)",
+        )  # fmt: skip
+    jd1, jd2 = case.epoch_jd_utc()
+    start = jd1 + jd2
+    if spec.kind == "solar-cycle":
+        low, high = FLUX_LEVELS["low"][0], FLUX_LEVELS["high"][0]
+        minimum = spec.minimum_utc or CYCLE_25_MINIMUM_UTC
+        return solar_cycle_flux(
+            start,
+            _jd(minimum),
+            period_years=spec.period_years or 11.0,
+            f107_min_sfu=low if spec.f107_min_sfu is None else spec.f107_min_sfu,
+            f107_max_sfu=high if spec.f107_max_sfu is None else spec.f107_max_sfu,
+            ap=15.0 if spec.ap is None else spec.ap,
+        )
+    dates, rows, digest = read_flux_table(spec.file)
+    try:
+        history = table_flux(
+            start, dates, rows[:, 0], rows[:, 1], rows[:, 2],
+            f"table {os.path.basename(spec.file)} (sha256 {digest[:16]}), quarterly means",
+        )  # fmt: skip
+    except InputError as err:
+        raise InputError(err.field, err.value, err.reason, file=spec.file) from None
+    return history
+
+
+def case_density_profile(case: Any, i_deg: float | None = None) -> DensityProfile:
+    """The density profile of the case's model and scenario, for an orbit of inclination
+    ``i_deg`` (default: the case orbit's)."""
+    fm = case.force_model
+    if fm.density_model == "exponential":
+        return exponential_profile(fm.solar_activity)
+    from ..kernel.nrlmsis import nrlmsis_profile
+
+    if i_deg is None:
+        i_deg = float(np.asarray(case.elements().i_deg))
+    return nrlmsis_profile(case_flux_history(case), float(np.asarray(i_deg)))
+
+
+def scenario_profiles(case: Any) -> list[tuple[str, DensityProfile]]:
+    """(name, profile) of the case's scenario ("case") then of the constant low, moderate and
+    high levels of the same model: the spread a lifetime is shown with."""
+    out = [("case", case_density_profile(case))]
+    fm = case.force_model
+    i_deg = float(np.asarray(case.elements().i_deg))
+    for level in FLUX_LEVELS:
+        if fm.density_model == "exponential":
+            profile = exponential_profile(level)
+        else:
+            from ..kernel.nrlmsis import nrlmsis_profile
+
+            profile = nrlmsis_profile(level_flux(level), i_deg)
+        if profile.key != out[0][1].key:
+            out.append((level, profile))
+    return out
