@@ -38,7 +38,12 @@ def _reference_rows():
     for line in _REF.read_text().splitlines()[1:]:
         items = line.split()
         iyd, sec, alt, lat, lon = int(items[0]), float(items[1]), *map(float, items[2:5])
-        f107a, f107, ap, rho_g_cm3 = float(items[6]), float(items[7]), float(items[8]), float(items[14])
+        f107a, f107, ap, rho_g_cm3 = (
+            float(items[6]),
+            float(items[7]),
+            float(items[8]),
+            float(items[14]),
+        )
         year = 1900 + iyd // 1000 if iyd // 1000 > 60 else 2000 + iyd // 1000
         date = (np.datetime64(str(year)) + np.timedelta64(iyd % 1000 - 1, "D")
                 + np.timedelta64(int(sec), "s"))  # fmt: skip
@@ -171,8 +176,9 @@ def test_solar_cycle_lifetime_lies_between_low_and_high():
     el = Elements(EARTH.radius_km + 500.0, 0.0, 51.6, 0.0, 0.0, 0.0)
     life = lifetime_years(el, ballistic_coefficient_kg_m2=50.0, density=cycle).years
     low, high = (
-        lifetime_years(el, ballistic_coefficient_kg_m2=50.0,
-                       density=nrl.nrlmsis_profile(level_flux(k), 51.6)).years  # fmt: skip
+        lifetime_years(
+            el, ballistic_coefficient_kg_m2=50.0, density=nrl.nrlmsis_profile(level_flux(k), 51.6)
+        ).years  # fmt: skip
         for k in ("low", "high")
     )
     assert high < life < low

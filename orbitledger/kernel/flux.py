@@ -128,8 +128,10 @@ def level_flux(level: str) -> FluxHistory:
     if key not in FLUX_LEVELS:
         raise InputError("flux.level", level, f"must be one of {', '.join(FLUX_LEVELS)}")
     f, fa, ap = FLUX_LEVELS[key]
-    return constant_flux(
-        f, fa, ap, f"{key} activity, F10.7 = F10.7a = {f:g} sfu, Ap = {ap:g} ({FLUX_LEVELS_SOURCE})"
+    history = constant_flux(f, fa, ap, f"{key} activity, F10.7 = F10.7a = {f:g} sfu, Ap = {ap:g}")
+    label = f"{history.label} (ECSS-E-ST-10-04C)"
+    return FluxHistory(
+        history.t_years, [f], [fa], [ap], label, notes={"levels": FLUX_LEVELS_SOURCE}
     )
 
 
