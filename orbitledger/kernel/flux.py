@@ -119,7 +119,9 @@ class FluxHistory:
 
 def constant_flux(f107_sfu: float, f107a_sfu: float, ap: float, label: str) -> FluxHistory:
     """A scenario that holds one state: F10.7 and F10.7a (sfu), Ap."""
-    return FluxHistory(np.zeros(1), [f107_sfu], [f107a_sfu], [ap], label)
+    return FluxHistory(
+        np.zeros(1), np.array([f107_sfu]), np.array([f107a_sfu]), np.array([ap]), label
+    )
 
 
 def level_flux(level: str) -> FluxHistory:
@@ -131,7 +133,12 @@ def level_flux(level: str) -> FluxHistory:
     history = constant_flux(f, fa, ap, f"{key} activity, F10.7 = F10.7a = {f:g} sfu, Ap = {ap:g}")
     label = f"{history.label} (ECSS-E-ST-10-04C)"
     return FluxHistory(
-        history.t_years, [f], [fa], [ap], label, notes={"levels": FLUX_LEVELS_SOURCE}
+        history.t_years,
+        history.f107_sfu,
+        history.f107a_sfu,
+        history.ap,
+        label,
+        notes={"levels": FLUX_LEVELS_SOURCE},
     )
 
 
