@@ -155,3 +155,18 @@ def test_scenario_lifetimes_order_low_case_high():
         for name, p in scenario_profiles(case)
     }
     assert years["high"] < years["case"] < years["low"]
+
+
+def test_lifetime_results_give_the_value_per_scenario():
+    # The record's lifetime group: the case's scenario, then the low and high levels of the
+    # same model; more flux, shorter life (common practice).
+    from orbitledger.analysis import case_results
+
+    results = case_results(case_with({"flux_scenario": {"kind": "solar-cycle"}}), ["lifetime"])
+    case, low, high = (
+        results[n].value
+        for n in ("lifetime_years", "lifetime_low_activity_years", "lifetime_high_activity_years")
+    )
+    assert high < case < low
+    assert "solar cycle" in results["lifetime_years"].description
+    assert "ECSS-E-ST-10-04C" in results["lifetime_high_activity_years"].description

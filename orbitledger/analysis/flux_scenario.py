@@ -39,6 +39,7 @@ __all__ = [
     "TABLE_COLUMNS",
     "case_density_profile",
     "case_flux_history",
+    "level_density_profile",
     "read_flux_table",
     "scenario_profiles",
 ]
@@ -181,19 +182,23 @@ def case_density_profile(case: Any, i_deg: float | None = None) -> DensityProfil
     return nrlmsis_profile(case_flux_history(case), float(np.asarray(i_deg)))
 
 
+def level_density_profile(case: Any, level: str, i_deg: float | None = None) -> DensityProfile:
+    """The case's density model at the constant activity ``level`` (low, moderate, high)."""
+    if case.force_model.density_model == "exponential":
+        return exponential_profile(level)
+    from ..kernel.nrlmsis import nrlmsis_profile
+
+    if i_deg is None:
+        i_deg = float(np.asarray(case.elements().i_deg))
+    return nrlmsis_profile(level_flux(level), float(np.asarray(i_deg)))
+
+
 def scenario_profiles(case: Any) -> list[tuple[str, DensityProfile]]:
     """(name, profile) of the case's scenario ("case") then of the constant low, moderate and
     high levels of the same model: the spread a lifetime is shown with."""
     out = [("case", case_density_profile(case))]
-    fm = case.force_model
-    i_deg = float(np.asarray(case.elements().i_deg))
     for level in FLUX_LEVELS:
-        if fm.density_model == "exponential":
-            profile = exponential_profile(level)
-        else:
-            from ..kernel.nrlmsis import nrlmsis_profile
-
-            profile = nrlmsis_profile(level_flux(level), i_deg)
+        profile = level_density_profile(case, level)
         if profile.key != out[0][1].key:
             out.append((level, profile))
     return out

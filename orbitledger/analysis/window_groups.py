@@ -166,7 +166,7 @@ def lifetime_results(case: Any) -> list[Result]:
     if case.spacecraft is None or not _closed_orbit(case):
         return []
     from ..kernel.lifetime import lifetime_years
-    from .flux_scenario import case_density_profile
+    from .flux_scenario import case_density_profile, level_density_profile
 
     elements = case.elements()
     reentry = (
@@ -193,6 +193,27 @@ def lifetime_results(case: Any) -> list[Result]:
             "lifetime",
             rel_tol=1e-6,
             caution=life.caution,
+        ),
+        *(
+            Result(
+                f"lifetime_{level}_activity_years",
+                float(other.years),
+                "yr",
+                f"Orbital lifetime as above under {other.flux_scenario} ({other.density_model})",
+                "lifetime",
+                rel_tol=1e-6,
+                caution=other.caution,
+            )
+            for level in ("low", "high")
+            for other in [
+                lifetime_years(
+                    elements,
+                    ballistic_coefficient_kg_m2=ballistic_coefficient_kg_m2(case),
+                    reentry_altitude_km=reentry,
+                    body=case.body_constants(),
+                    density=level_density_profile(case, level),
+                )
+            ]
         ),
         Result(
             "ballistic_coefficient_kg_m2",
