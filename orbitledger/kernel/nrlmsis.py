@@ -157,7 +157,6 @@ def _profile(i_deg: float, flux: FluxHistory) -> DensityProfile:
     log_nodes = np.log(np.stack([t @ weights for t in tables], axis=1))  # (alt, time)
     rows = _hermite(_H_NODES, log_nodes, _GRID_KM).T
     notes = {
-        "flux_scenario": flux.label,
         "average": "9 latitudes weighted by the orbit's time at each, 6 local times, 6 dates",
         **flux.notes,
     }
