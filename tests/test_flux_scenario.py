@@ -170,3 +170,16 @@ def test_lifetime_results_give_the_value_per_scenario():
     assert high < case < low
     assert "solar cycle" in results["lifetime_years"].description
     assert "ECSS-E-ST-10-04C" in results["lifetime_high_activity_years"].description
+
+
+def test_profile_from_moves_the_time_origin():
+    from orbitledger.analysis.flux_scenario import profile_from
+    from orbitledger.kernel.flux import solar_cycle_flux
+    from orbitledger.kernel.nrlmsis import nrlmsis_profile
+
+    cycle = nrlmsis_profile(solar_cycle_flux(2461406.5, 2458832.5), 97.5)
+    later = profile_from(cycle, 5.0)
+    for t in (0.0, 3.3, 9.0, 14.0):  # periodic: the same density 5 years on
+        assert later.density_kg_m3(500.0, t) == pytest.approx(cycle.density_kg_m3(500.0, t + 5.0))
+    constant = case_density_profile(case_with({}))
+    assert profile_from(constant, 5.0) is constant

@@ -40,6 +40,7 @@ __all__ = [
     "case_density_profile",
     "case_flux_history",
     "level_density_profile",
+    "profile_from",
     "read_flux_table",
     "scenario_profiles",
 ]
@@ -191,6 +192,24 @@ def level_density_profile(case: Any, level: str, i_deg: float | None = None) -> 
     if i_deg is None:
         i_deg = float(np.asarray(case.elements().i_deg))
     return nrlmsis_profile(level_flux(level), float(np.asarray(i_deg)))
+
+
+def profile_from(profile: DensityProfile, start_years: float) -> DensityProfile:
+    """``profile`` with its time origin moved ``start_years`` later (e.g. the disposal that
+    follows the mission); a profile that does not change with time is returned as it is."""
+    if not profile.time_varying or start_years == 0.0:
+        return profile
+    return DensityProfile(
+        profile.model,
+        f"{profile.scenario}, from {start_years:g} years after the epoch",
+        profile.key + ("from", float(start_years)),
+        profile.h0_km,
+        profile.dh_km,
+        profile.log_rho,
+        profile.t_years - float(start_years),
+        profile.period_years,
+        profile.notes,
+    )
 
 
 def scenario_profiles(case: Any) -> list[tuple[str, DensityProfile]]:

@@ -119,7 +119,7 @@ def budget_for_case(
 
     steps = burn_plan_for_case(case)
     operational = steps[-1].elements_after if steps else case.elements()
-    from .flux_scenario import case_density_profile
+    from .flux_scenario import case_density_profile, profile_from
 
     profile = case_density_profile(case, float(np.asarray(operational.i_deg)))
     activity = profile.scenario
@@ -161,8 +161,9 @@ def budget_for_case(
     disposal = None
     if limit is not None:
         disposal = disposal_perigee_lowering(
-            operational, limit, b, reentry_altitude_km=reentry_km, body=body, density=profile
-        )
+            operational, limit, b, reentry_altitude_km=reentry_km, body=body,
+            density=profile_from(profile, years),  # disposal starts at the mission's end
+        )  # fmt: skip
         items.append(
             BudgetItem(
                 "disposal (perigee lowering)",
