@@ -49,8 +49,8 @@ FLUX_LEVELS_SOURCE = "ECSS-E-ST-10-04C (2008), clause 8, activity levels for the
 FLUX_LEVELS: Mapping[str, tuple[float, float, float]] = MappingProxyType(
     {"low": (65.0, 65.0, 0.0), "moderate": (140.0, 140.0, 15.0), "high": (250.0, 250.0, 45.0)}
 )
-# Accepted ranges: F10.7 and F10.7a in sfu (the observed daily values since 1947 lie within
-# about 60-370 sfu, NOAA/NRCan records; common practice), Ap 0-400 (the index's full scale).
+# Accepted ranges: F10.7 and F10.7a 50-400 sfu (a margin around the 60-300 sfu over which
+# NRLMSIS is fitted, Emmert et al. 2021; common practice), Ap 0-400 (the index's full scale).
 FLUX_LIMITS: Mapping[str, tuple[float, float]] = MappingProxyType(
     {"f107_sfu": (50.0, 400.0), "f107a_sfu": (50.0, 400.0), "ap": (0.0, 400.0)}
 )
