@@ -183,3 +183,14 @@ def test_profile_from_moves_the_time_origin():
         assert later.density_kg_m3(500.0, t) == pytest.approx(cycle.density_kg_m3(500.0, t + 5.0))
     constant = case_density_profile(case_with({}))
     assert profile_from(constant, 5.0) is constant
+
+
+def test_numerical_drag_uses_the_case_density():
+    from orbitledger.analysis.inputs import case_force_model
+
+    case = case_with({"propagator": "numerical", "drag": True, "solar_activity": "low"})
+    model = case_force_model(case)
+    assert model.density.model.startswith("NRLMSIS 2.1") and "low activity" in model.description
+    fast = case_with({"propagator": "numerical", "drag": True, "density_model": "exponential"})
+    assert case_force_model(fast).density is None  # the exponential model, untabulated
+    assert "moderate solar activity" in case_force_model(fast).description

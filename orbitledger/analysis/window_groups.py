@@ -199,7 +199,8 @@ def lifetime_results(case: Any) -> list[Result]:
                 f"lifetime_{level}_activity_years",
                 float(other.years),
                 "yr",
-                f"Orbital lifetime as above under {other.flux_scenario} ({other.density_model})",
+                f"Orbital lifetime to the same re-entry height at {other.flux_scenario}, "
+                "same density model (the spread with solar activity)",
                 "lifetime",
                 rel_tol=1e-6,
                 caution=other.caution,
