@@ -26,33 +26,14 @@ def make_keys(folder: Path) -> SimpleNamespace:
     pp = folder / "pass.txt"
     pp.write_text(PASSPHRASE + "\n")
     org = ["--org", "Fenwick Orbital Lab"]
-    assert (
-        main(
-            [
-                "keys",
-                "new-ca",
-                "--name",
-                "Fenwick signing authority",
-                *org,
-                "--out",
-                str(folder / "ca"),
-            ]
-        )
-        == 0
-    )
+    assert main(["keys", "new-ca", "--name", "Fenwick signing authority", *org, "--out", str(folder / "ca")]) == 0
     assert main(["keys", "new", "--name", "C. Checker", *org, "--email", "checker@fenwick.example",
                  "--out", str(folder / "checker"), "--passphrase-file", str(pp),
                  "--ca", str(folder / "ca.key.pem"), "--ca-cert", str(folder / "ca.cert.pem")]) == 0  # fmt: skip
-    assert (
-        main(["keys", "new", "--name", "A. Approver", *org, "--out", str(folder / "approver")]) == 0
-    )
-    assert (
-        main(["keys", "new", "--name", "C. Checker", *org, "--out", str(folder / "impostor")]) == 0
-    )
+    assert main(["keys", "new", "--name", "A. Approver", *org, "--out", str(folder / "approver")]) == 0
+    assert main(["keys", "new", "--name", "C. Checker", *org, "--out", str(folder / "impostor")]) == 0
     trust = folder / "trust.pem"  # the authority, and the approver's own certificate
-    trust.write_text(
-        (folder / "ca.cert.pem").read_text() + (folder / "approver.cert.pem").read_text()
-    )
+    trust.write_text((folder / "ca.cert.pem").read_text() + (folder / "approver.cert.pem").read_text())
     return SimpleNamespace(folder=folder, passphrase=pp, trust=trust,
                            **{n: SimpleNamespace(key=folder / f"{n}.key.pem", cert=folder / f"{n}.cert.pem")
                               for n in ("ca", "checker", "approver", "impostor")})  # fmt: skip

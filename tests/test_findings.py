@@ -160,9 +160,7 @@ def test_accept_failing_records_the_reason_and_verify_judges_the_findings_again(
     record, extras = read_record(outcome.files["html"])
     # A finding turned from fail to pass in the embedded record is caught.
     margin = next(
-        f
-        for f in record["findings"]["cases"][0]["findings"]
-        if f["metric"] == "propellant_margin_kg"
+        f for f in record["findings"]["cases"][0]["findings"] if f["metric"] == "propellant_margin_kg"
     )
     margin["passed"], margin["reason"] = True, ""
     report = verify_record(record, extras)

@@ -131,13 +131,9 @@ def test_every_axis_label_of_every_figure_is_printed_on_its_page(printed):
         for label in labels:
             for token in label.split():
                 boxes = [w for w in words if w[4] == token]
-                assert boxes, (
-                    f"figure {n} ({fig['name']}): axis label {label!r} not on page {number}"
-                )
+                assert boxes, f"figure {n} ({fig['name']}): axis label {label!r} not on page {number}"
                 x0, y0, x1, y1, _ = boxes[0]
-                assert (
-                    inside[0] <= x0 and x1 <= inside[2] and inside[1] <= y0 and y1 <= inside[3]
-                ), (
+                assert inside[0] <= x0 and x1 <= inside[2] and inside[1] <= y0 and y1 <= inside[3], (
                     f"figure {n}: {token!r} of {label!r} at {boxes[0][:4]} lies outside the page's "
                     f"printable area {inside}"
                 )

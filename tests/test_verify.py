@@ -148,10 +148,7 @@ def test_a_pdf_record_verifies_and_an_altered_attachment_fails(built, tmp_path):
     good.write_bytes(attach(blank.getvalue(), record, notebook))
     report = verify_file(good)
     failed = {c.what for c in report.checks if not c.ok}
-    assert failed == {
-        "PDF pages: the 1 the build printed, unchanged",
-        "PDF text: as the record says",
-    }
+    assert failed == {"PDF pages: the 1 the build printed, unchanged", "PDF text: as the record says"}
     meta = PdfReader(good).metadata
     assert meta["/OrbitLedgerRecordId"] == "KES2-ORB-001" and meta["/OrbitLedgerRevision"] == "1"
 

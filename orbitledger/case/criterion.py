@@ -32,7 +32,9 @@ def split_criterion(text: Any) -> tuple[str, str, str]:
     """
     match = _TEXT.match(str(text)) if isinstance(text, str) else None
     if not match:
-        raise ValueError("write RESULT >= VALUE (or <=, >, <), e.g. 'propellant_margin_kg >= 0'")
+        raise ValueError(
+            "write RESULT >= VALUE (or <=, >, <), e.g. 'propellant_margin_kg >= 0'"
+        )
     return match.group(1), match.group(2), match.group(3)
 
 

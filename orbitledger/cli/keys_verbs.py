@@ -21,16 +21,12 @@ def _write(args: argparse.Namespace, key, cert, passphrase) -> int:
     from orbitledger.reporting.keys import cert_fingerprint, write_key_pair
 
     key_path, cert_path = write_key_pair(args.out, key, cert, passphrase)
-    state = (
-        "encrypted with the passphrase" if passphrase else "NOT encrypted (no --passphrase-file)"
-    )
+    state = "encrypted with the passphrase" if passphrase else "NOT encrypted (no --passphrase-file)"
     print(f"private key  {key_path}  (PKCS#8, {state}, mode 0600: keep it to yourself)")
     print(f"certificate  {cert_path}")
     print(f"  subject    {cert.subject.rfc4514_string()}")
     print(f"  issuer     {cert.issuer.rfc4514_string()}")
-    print(
-        f"  valid      {cert.not_valid_before_utc:%Y-%m-%dT%H:%M:%SZ} to {cert.not_valid_after_utc:%Y-%m-%dT%H:%M:%SZ}"
-    )
+    print(f"  valid      {cert.not_valid_before_utc:%Y-%m-%dT%H:%M:%SZ} to {cert.not_valid_after_utc:%Y-%m-%dT%H:%M:%SZ}")
     print(f"  SHA-256    {cert_fingerprint(cert)}")
     return 0
 
@@ -67,9 +63,7 @@ def _run_new_ca(args: argparse.Namespace) -> int:
     passphrase = read_passphrase(args.passphrase_file)
     key, cert = new_authority(args.name, org=args.org or "", email=args.email or "", days=args.days)
     status = _write(args, key, cert, passphrase)
-    print(
-        f"give {args.out}.cert.pem to 'orbitledger verify --trust' to accept what this authority issues"
-    )
+    print(f"give {args.out}.cert.pem to 'orbitledger verify --trust' to accept what this authority issues")
     return status
 
 
@@ -77,14 +71,8 @@ def _common(p: argparse.ArgumentParser, days: int) -> None:
     p.add_argument("--name", required=True, help="the name on the certificate (its common name)")
     p.add_argument("--org", help="organisation")
     p.add_argument("--email", help="e-mail address")
-    p.add_argument(
-        "--out", required=True, metavar="PREFIX", help="writes PREFIX.key.pem and PREFIX.cert.pem"
-    )
-    p.add_argument(
-        "--passphrase-file",
-        metavar="FILE",
-        help="encrypt the key with the passphrase on its first line",
-    )
+    p.add_argument("--out", required=True, metavar="PREFIX", help="writes PREFIX.key.pem and PREFIX.cert.pem")
+    p.add_argument("--passphrase-file", metavar="FILE", help="encrypt the key with the passphrase on its first line")
     p.add_argument("--days", type=int, default=days, help=f"validity in days (default {days})")
 
 
@@ -95,9 +83,7 @@ def register(subparsers) -> None:
 
     q = verbs.add_parser("new", help="a person's signing key and certificate")
     _common(q, 2 * 365)
-    q.add_argument(
-        "--ca", metavar="CA.key.pem", help="issue the certificate with this authority's key"
-    )
+    q.add_argument("--ca", metavar="CA.key.pem", help="issue the certificate with this authority's key")
     q.add_argument("--ca-cert", metavar="CA.cert.pem", help="the authority's certificate")
     q.add_argument("--ca-passphrase-file", metavar="FILE", help="the authority key's passphrase")
     q.set_defaults(run=_run_new)

@@ -70,9 +70,7 @@ def _signer(args: argparse.Namespace, *, required: bool = False):
         if args.cert is not None or args.passphrase_file is not None:
             raise UsageError("--cert and --passphrase-file go with --key KEY.key.pem (or KEY.p12)")
         if required:
-            raise UsageError(
-                "give --key KEY.key.pem --cert KEY.cert.pem, or --name NAME (unsigned)"
-            )
+            raise UsageError("give --key KEY.key.pem --cert KEY.cert.pem, or --name NAME (unsigned)")
         return None
     signer = load_signer(args.key, args.cert, read_passphrase(args.passphrase_file))
     for message in signer.messages:
@@ -81,15 +79,9 @@ def _signer(args: argparse.Namespace, *, required: bool = False):
 
 
 def _add_key_options(p: argparse.ArgumentParser, role: str) -> None:
-    p.add_argument(
-        "--key", metavar="KEY.key.pem", help=f"sign as {role} with this key (PEM PKCS#8 or .p12)"
-    )
-    p.add_argument(
-        "--cert", metavar="KEY.cert.pem", help="the key's certificate (inside a .p12 already)"
-    )
-    p.add_argument(
-        "--passphrase-file", metavar="FILE", help="the key's passphrase, on the first line"
-    )
+    p.add_argument("--key", metavar="KEY.key.pem", help=f"sign as {role} with this key (PEM PKCS#8 or .p12)")
+    p.add_argument("--cert", metavar="KEY.cert.pem", help="the key's certificate (inside a .p12 already)")
+    p.add_argument("--passphrase-file", metavar="FILE", help="the key's passphrase, on the first line")
 
 
 def _run_build(args: argparse.Namespace) -> int:
