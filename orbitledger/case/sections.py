@@ -255,7 +255,7 @@ class ForceModel(CaseModel):
     """Numerical integrator absolute tolerance on position, km."""
 
     @model_validator(mode="after")
-    def _no_repeated_body(self) -> ForceModel:
+    def _flux_needs_nrlmsis(self) -> ForceModel:
         if self.density_model == "exponential" and self.flux_scenario is not None:
             raise rule(
                 "flux_scenario",
@@ -263,6 +263,10 @@ class ForceModel(CaseModel):
                 'is used by the "nrlmsis" density model; the exponential one takes '
                 "solar_activity only",
             )
+        return self
+
+    @model_validator(mode="after")
+    def _no_repeated_body(self) -> ForceModel:
         seen: set[str] = set()
         for k, name in enumerate(self.third_body):
             if name in seen:

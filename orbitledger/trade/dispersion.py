@@ -123,8 +123,8 @@ def disperse(
     Returns the DataFrame of :func:`orbitledger.trade.evaluate.evaluate_cases` (inputs, then
     metrics); ``attrs`` also hold ``seed``, ``bit_generator`` ("PCG64"), ``samples`` and the
     ``dispersions`` and, with the lifetime group, ``lifetime_percentiles``
-    (``orbitledger.trade.lifetime_spread``). ``options``: ``scheduler``, ``chunk_size``, ``progress``, ``repeat``,
-    ``max_memory_bytes``.
+    (``orbitledger.trade.lifetime_spread``). ``options``: ``scheduler``, ``chunk_size``,
+    ``progress``, ``repeat``, ``max_memory_bytes``.
     """
     from .evaluate import as_case, evaluate_cases, refuse_if_too_large
 
