@@ -194,3 +194,22 @@ def test_numerical_drag_uses_the_case_density():
     fast = case_with({"propagator": "numerical", "drag": True, "density_model": "exponential"})
     assert case_force_model(fast).density is None  # the exponential model, untabulated
     assert "moderate solar activity" in case_force_model(fast).description
+
+
+def test_record_states_the_density_model_and_flux_scenario():
+    # The record's "models and assumptions" rows, from the case data alone.
+    from reporting.record import models_and_assumptions
+
+    raw = copy.deepcopy(STARTER_DATA)
+    raw["force_model"] = {"flux_scenario": {"kind": "solar-cycle", "period_years": 10.5}}
+    rows = {r["topic"]: r["value"] for r in models_and_assumptions(raw)}
+    assert (
+        rows["Density model"].startswith("NRLMSIS 2.1")
+        and "lifetime and disposal" in rows["Density model"]
+    )
+    assert "solar cycle" in rows["Solar activity"] and "10.5 years" in rows["Solar activity"]
+    raw["force_model"] = {"density_model": "exponential", "solar_activity": "low"}
+    rows = {r["topic"]: r["value"] for r in models_and_assumptions(raw)}
+    assert rows["Density model"].startswith("piecewise-exponential") and rows[
+        "Solar activity"
+    ].startswith("low")

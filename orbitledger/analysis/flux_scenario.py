@@ -221,3 +221,41 @@ def scenario_profiles(case: Any) -> list[tuple[str, DensityProfile]]:
         if profile.key != out[0][1].key:
             out.append((level, profile))
     return out
+
+
+def density_statement(case_data: dict[str, Any]) -> tuple[str, str]:
+    """(density model, flux scenario) in words for a record's models and assumptions, from the
+    case's JSON data alone (what the lifetime, the disposal and, with drag, the numerical
+    propagation use)."""
+    from ..kernel.atmosphere import DENSITY_MODEL_NAME
+    from ..kernel.flux import FLUX_LEVELS_SOURCE
+    from ..kernel.nrlmsis import NRLMSIS_MODEL_NAME
+
+    fm = case_data.get("force_model") or {}
+    level = fm.get("solar_activity", "moderate")
+    uses = "lifetime and disposal" + (
+        ", and drag in the numerical propagation" if fm.get("drag") else ""
+    )
+    if fm.get("density_model", "nrlmsis") == "exponential":
+        return f"{DENSITY_MODEL_NAME}; used for {uses}", f"{level}, held constant"
+    spec = fm.get("flux_scenario") or {"kind": "constant", "level": level}
+    kind = spec.get("kind")
+    if kind == "constant" and spec.get("level"):
+        f, fa, ap = FLUX_LEVELS[spec["level"]]
+        flux = (f"constant {spec['level']} activity: F10.7 = {f:g}, F10.7a = {fa:g} sfu, "
+                f"Ap = {ap:g} ({FLUX_LEVELS_SOURCE})")  # fmt: skip
+    elif kind == "constant":
+        flux = (f"constant: F10.7 = {spec['f107_sfu']:g}, F10.7a = {spec['f107a_sfu']:g} sfu, "
+                f"Ap = {spec['ap']:g} (stated in the case)")  # fmt: skip
+    elif kind == "solar-cycle":
+        flux = (
+            f"solar cycle (Hathaway, Wilson & Reichmann 1994 shape), minimum "
+            f"{spec.get('minimum_utc') or CYCLE_25_MINIMUM_UTC}, period "
+            f"{spec.get('period_years') or 11.0:g} years, F10.7 "
+            f"{spec.get('f107_min_sfu') or FLUX_LEVELS['low'][0]:g}-"
+            f"{spec.get('f107_max_sfu') or FLUX_LEVELS['high'][0]:g} sfu, "
+            f"Ap {15.0 if spec.get('ap') is None else spec['ap']:g}"
+        )
+    else:
+        flux = f"table of F10.7, F10.7a and Ap from the file {spec.get('file')}, quarterly means"
+    return f"{NRLMSIS_MODEL_NAME}; used for {uses}", flux
