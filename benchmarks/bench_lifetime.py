@@ -5,7 +5,9 @@ cleared before each call, so every call integrates), the same for an eccentric o
 disposal perigee-lowering search, each beside the former path (scipy RK45 in time, kept in
 ``orbitledger.kernel.lifetime_ode``; bisection with one integration per trial), with the
 ratios and the issue's absolute targets (circular <= 2 ms, disposal search <= 40 ms), and the
-relative difference of the results.
+relative difference of the results. Then the circular lifetime with the NRLMSIS 2.1 table
+(moderate ECSS level, built once and timed apart) beside the exponential model, with the
+issue's target (NRLMSIS <= 2x the exponential model's time).
 
 Run: ``.venv/bin/python benchmarks/bench_lifetime.py``
 """
@@ -87,7 +89,32 @@ def main() -> int:
             met = best[f"{name}, fast kernel"] <= target_s
             ok &= met
             print(f"  target <= {target_s * 1e3:g} ms: {'met' if met else 'MISSED'}")
+    ok &= _nrlmsis_beside_exponential()
     return 0 if ok else 1
+
+
+def _nrlmsis_beside_exponential() -> bool:
+    import time
+
+    from orbitledger.kernel.flux import level_flux
+    from orbitledger.kernel.nrlmsis import nrlmsis_profile
+
+    start = time.perf_counter()
+    msis = nrlmsis_profile(level_flux("moderate"), INC_DEG)
+    print(
+        f"NRLMSIS 2.1 table (moderate, once per process)  {(time.perf_counter() - start) * 1e3:9.2f} ms"
+    )
+
+    def cold(density):
+        lifetime_module._CACHE.clear()
+        return lifetime_years(CIRCULAR, ballistic_coefficient_kg_m2=B, density=density).years
+
+    base = "circular lifetime_years, exponential"
+    name = "circular lifetime_years, NRLMSIS table"
+    best = min_times_s({base: lambda: cold(PROFILE), name: lambda: cold(msis)}, repeats=15)
+    met = report_ratios(best, base, {name: 2.0})
+    print(f"  NRLMSIS {cold(msis):.4g} y, exponential {cold(PROFILE):.4g} y (same case)")
+    return met
 
 
 if __name__ == "__main__":

@@ -145,14 +145,6 @@ def constants_of(case: Any) -> list[dict[str, Any]]:
     return rows
 
 
-def _density_model_name() -> str:
-    try:
-        from orbitledger.kernel import atmosphere
-    except ImportError:
-        return "not available in this orbitledger version"
-    return (atmosphere.__doc__ or "").strip().splitlines()[0].rstrip(".")
-
-
 def models_and_assumptions(case_data: dict[str, Any]) -> list[dict[str, str]]:
     """What a reader must know to reproduce a case: force model, frames, time scales, EOP."""
     fm = case_data.get("force_model") or {"propagator": "two-body"}
@@ -169,12 +161,9 @@ def models_and_assumptions(case_data: dict[str, Any]) -> list[dict[str, str]]:
         ),
         "sgp4": "SGP4 (Vallado et al. 2006, AIAA 2006-6753) from TLE mean elements",
     }.get(prop, prop)
-    drag = bool(fm.get("drag"))
-    density = (
-        f"{_density_model_name()}; solar activity {fm.get('solar_activity', 'moderate')}"
-        if drag
-        else f"not used (no drag in the force model); solar activity level stated: {fm.get('solar_activity', 'moderate')}"
-    )
+    from orbitledger.analysis.flux_scenario import density_statement
+
+    density, flux = density_statement(case_data)
     return [
         {"topic": "Force model", "value": force},
         {"topic": "Propagator setting", "value": prop},
@@ -193,7 +182,7 @@ def models_and_assumptions(case_data: dict[str, Any]) -> list[dict[str, str]]:
         *_earth_orientation_rows(case_data, eop),
         *_site_rows(case_data),
         {"topic": "Density model", "value": density},
-        {"topic": "Solar activity", "value": str(fm.get("solar_activity", "moderate"))},
+        {"topic": "Solar activity", "value": flux},
     ]
 
 

@@ -16,7 +16,9 @@ import pytest
 from orbitledger.case.starter import STARTER_DATA
 from orbitledger.cli.main import main
 from orbitledger.kernel import Elements
+from orbitledger.kernel.flux import level_flux
 from orbitledger.kernel.lifetime import lifetime_years
+from orbitledger.kernel.nrlmsis import nrlmsis_profile
 
 
 def run(capsys, *argv):
@@ -48,13 +50,24 @@ def test_json_lifetime_of_the_starter_case(tmp_path, capsys):
     assert data["assumptions"]["solar_activity"].startswith("moderate")
     assert "disposal-compliance" in data["caution"]
     assert data["reentry_epoch_utc"][:2] == "20"
-    # The verb reports exactly what the kernel computes for the same inputs.
+    # The verb reports exactly what the kernel computes for the same inputs: NRLMSIS 2.1 at
+    # the moderate ECSS level by default, the exponential model when the case asks for it.
     orbit = STARTER_DATA["orbit"]
-    kernel = lifetime_years(
-        Elements(6378.137 + orbit["altitude_km"], orbit["e"], orbit["i_deg"], 0, 0, 0),
-        ballistic_coefficient_kg_m2=b,
-    )
+    elements = Elements(6378.137 + orbit["altitude_km"], orbit["e"], orbit["i_deg"], 0, 0, 0)
+    msis = nrlmsis_profile(level_flux("moderate"), orbit["i_deg"])
+    kernel = lifetime_years(elements, ballistic_coefficient_kg_m2=b, density=msis)
     assert data["lifetime_years"] == pytest.approx(kernel.years, rel=1e-9)
+    assert data["density_model"].startswith("NRLMSIS 2.1")
+    assert [row["scenario"] for row in data["scenarios"]] == ["case", "low", "high"]
+    low, high = data["scenarios"][1]["lifetime_years"], data["scenarios"][2]["lifetime_years"]
+    assert high < data["lifetime_years"] and (low is None or low > data["lifetime_years"])
+    fast = {"density_model": "exponential"}
+    status, out, err = run(
+        capsys, "lifetime", str(write_case(tmp_path, {"force_model": fast})), "--json"
+    )
+    assert status == 0, err
+    kernel = lifetime_years(elements, ballistic_coefficient_kg_m2=b)
+    assert json.loads(out)["lifetime_years"] == pytest.approx(kernel.years, rel=1e-9)
 
 
 def test_solar_activity_and_disposal_limit_come_from_the_case(tmp_path, capsys):
@@ -83,7 +96,8 @@ def test_table_shows_the_number_its_assumptions_and_the_caution(tmp_path, capsys
     status, out, _ = run(capsys, "lifetime", str(write_case(tmp_path)))
     assert status == 0
     assert "orbital lifetime" in out and "years" in out
-    assert "Table 8-4" in out and "ballistic coefficient (kg/m^2)" in out
+    assert "NRLMSIS 2.1" in out and "ballistic coefficient (kg/m^2)" in out
+    assert "at high activity" in out and "ECSS-E-ST-10-04C" in out
     assert "Caution:" in out
 
 

@@ -53,6 +53,11 @@ def ballistic_coefficient_kg_m2(case: Any, *, field: str = "spacecraft") -> floa
 def case_force_model(case: Any) -> KernelForceModel:
     """The kernel force model of a numerical case (drag only when the case asks for it)."""
     fm = case.force_model
+    density = None  # the exponential model is evaluated directly (untabulated), as before
+    if fm.drag and fm.density_model != "exponential":
+        from .flux_scenario import case_density_profile
+
+        density = case_density_profile(case)
     return KernelForceModel(
         zonal_degree=fm.zonal_degree,
         ballistic_coefficient_kg_m2=(
@@ -61,6 +66,7 @@ def case_force_model(case: Any) -> KernelForceModel:
         solar_activity=fm.solar_activity,
         third_bodies=tuple(fm.third_body),
         body=case.body_constants(),
+        density=density,
     )
 
 

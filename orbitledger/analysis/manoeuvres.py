@@ -75,7 +75,6 @@ def budget_for_case(
     in for a missing one). Lines in flight order: fixed allowances, one line per burn of the
     plan, station-keeping (drag make-up x mission years), per-year allowances x mission years,
     disposal. Refused without the spacecraft's mass and Isp."""
-    from ..kernel.atmosphere import DENSITY_MODEL_NAME
     from ..kernel.budget import (
         BudgetItem,
         delta_v_budget,
@@ -116,11 +115,14 @@ def budget_for_case(
         limit = limit if limit is not None else section.disposal.lifetime_limit_years
         reentry_km = section.disposal.reentry_altitude_km
     body = case.body_constants()
-    activity = case.force_model.solar_activity
     b = float(ballistic_coefficient_kg_m2(sc.mass_kg, sc.drag_area_m2, sc.drag_coefficient))
 
     steps = burn_plan_for_case(case)
     operational = steps[-1].elements_after if steps else case.elements()
+    from .flux_scenario import case_density_profile, profile_from
+
+    profile = case_density_profile(case, float(np.asarray(operational.i_deg)))
+    activity = profile.scenario
     items: list[BudgetItem] = []
     for a in allowances:
         if not a.per_year:
@@ -135,13 +137,15 @@ def budget_for_case(
             BudgetItem(burn.name, dv, True, "burn plan, impulsive, two-body between burns")
         )
     if station_keeping:
-        per_year = drag_makeup_dv_km_s_per_year(operational, b, activity, body)
+        per_year = drag_makeup_dv_km_s_per_year(
+            operational, b, body=body, density=profile.mean_over(0.0, years)
+        )
         items.append(
             BudgetItem(
                 "station keeping (drag make-up)",
                 per_year * years,
                 True,
-                f"{per_year * 1000.0:.4g} m/s per year x {years:g} years, {activity} solar activity",
+                f"{per_year * 1000.0:.4g} m/s per year x {years:g} years, {activity}",
             )
         )
     for a in allowances:
@@ -156,7 +160,10 @@ def budget_for_case(
             )
     disposal = None
     if limit is not None:
-        disposal = disposal_perigee_lowering(operational, limit, b, activity, reentry_km, body)
+        disposal = disposal_perigee_lowering(
+            operational, limit, b, reentry_altitude_km=reentry_km, body=body,
+            density=profile_from(profile, years),  # disposal starts at the mission's end
+        )  # fmt: skip
         items.append(
             BudgetItem(
                 "disposal (perigee lowering)",
@@ -176,8 +183,8 @@ def budget_for_case(
     assumptions = {
         "propulsion": f"Isp {sc.isp_s:g} s, g0 9.80665 m/s^2, wet mass {sc.mass_kg:g} kg",
         "margin_policy": f"{margin:g} % added to computed lines; allowances only where marked",
-        "drag": f"B = m/(Cd A) = {b:.4g} kg/m^2; {DENSITY_MODEL_NAME}",
-        "solar_activity": f"{activity}, held constant",
+        "drag": f"B = m/(Cd A) = {b:.4g} kg/m^2; {profile.model}",
+        "solar_activity": activity,
         "operational_orbit": "osculating elements after the last burn, taken as mean",
     }
     return BudgetReport(budget, steps, disposal, operational, assumptions)

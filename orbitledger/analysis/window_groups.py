@@ -166,6 +166,7 @@ def lifetime_results(case: Any) -> list[Result]:
     if case.spacecraft is None or not _closed_orbit(case):
         return []
     from ..kernel.lifetime import lifetime_years
+    from .flux_scenario import case_density_profile, level_density_profile
 
     elements = case.elements()
     reentry = (
@@ -179,6 +180,7 @@ def lifetime_results(case: Any) -> list[Result]:
         solar_activity=case.force_model.solar_activity,
         reentry_altitude_km=reentry,
         body=case.body_constants(),
+        density=case_density_profile(case),
     )
     return [
         Result(
@@ -187,10 +189,32 @@ def lifetime_results(case: Any) -> list[Result]:
             "yr",
             f"Orbital lifetime until the perigee is {reentry:g} km above the ellipsoid "
             f"(at the orbit's mean latitude) under drag ({life.method}, "
-            f"{life.solar_activity} solar activity)",
+            f"{life.density_model}; {life.flux_scenario})",
             "lifetime",
             rel_tol=1e-6,
             caution=life.caution,
+        ),
+        *(
+            Result(
+                f"lifetime_{level}_activity_years",
+                float(other.years),
+                "yr",
+                f"Orbital lifetime to the same re-entry height at {other.flux_scenario}, "
+                "same density model (the spread with solar activity)",
+                "lifetime",
+                rel_tol=1e-6,
+                caution=other.caution,
+            )
+            for level in ("low", "high")
+            for other in [
+                lifetime_years(
+                    elements,
+                    ballistic_coefficient_kg_m2=ballistic_coefficient_kg_m2(case),
+                    reentry_altitude_km=reentry,
+                    body=case.body_constants(),
+                    density=level_density_profile(case, level),
+                )
+            ]
         ),
         Result(
             "ballistic_coefficient_kg_m2",

@@ -14,6 +14,7 @@ from typing import Annotated, Literal
 from pydantic import AfterValidator, Field, model_validator
 
 from ..kernel.constants import BODIES, Body
+from .atmosphere import FluxScenario
 from .fields import (
     MAX_LIST_ITEMS,
     CaseModel,
@@ -239,13 +240,30 @@ class ForceModel(CaseModel):
     drag: bool = False
     """Numerical: atmospheric drag (needs the spacecraft's mass, area and drag coefficient)."""
     solar_activity: Literal["low", "moderate", "high"] = "moderate"
-    """Level of solar activity for the atmosphere model."""
+    """Level of solar activity for the atmosphere model (when no flux_scenario is given)."""
+    density_model: Literal["nrlmsis", "exponential"] = Field(
+        "nrlmsis", exclude_if=lambda v: v == "nrlmsis"
+    )
+    """Density for lifetime, disposal and drag: NRLMSIS 2.1 (default) or the fast exponential."""
+    flux_scenario: FluxScenario | None = Field(None, exclude_if=lambda v: v is None)
+    """NRLMSIS: the F10.7/F10.7a/Ap scenario (default: constant at solar_activity's level)."""
     third_body: list[Literal["sun", "moon"]] = Field(default_factory=list)
     """Numerical: third-body attraction of the Sun and/or the Moon."""
     rtol: Annotated[float, Field(ge=1e-14, le=1e-3)] = 1e-10
     """Numerical integrator relative tolerance."""
     atol_km: ranged(0.0, 10.0, "km", low_open=True) = 1e-6
     """Numerical integrator absolute tolerance on position, km."""
+
+    @model_validator(mode="after")
+    def _flux_needs_nrlmsis(self) -> ForceModel:
+        if self.density_model == "exponential" and self.flux_scenario is not None:
+            raise rule(
+                "flux_scenario",
+                self.flux_scenario.kind,
+                'is used by the "nrlmsis" density model; the exponential one takes '
+                "solar_activity only",
+            )
+        return self
 
     @model_validator(mode="after")
     def _no_repeated_body(self) -> ForceModel:

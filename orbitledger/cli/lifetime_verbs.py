@@ -3,9 +3,12 @@
 ``orbitledger lifetime CASE [--json] [--method orbit-averaged|numerical] [--max-years N]``
 
 The drag inputs come from the case: the spacecraft's mass, drag area and drag coefficient (the
-ballistic coefficient m / (Cd A)), ``force_model.solar_activity`` for the atmosphere level, and
-``budget.disposal.reentry_altitude_km`` (120 km when absent). The assumptions are printed beside
-the number with the lifetime caution. A long numerical run shows a progress bar on stderr when
+ballistic coefficient m / (Cd A)), ``force_model.density_model`` (NRLMSIS 2.1 by default, or the
+exponential atmosphere) with ``force_model.flux_scenario`` (or the constant level named by
+``force_model.solar_activity``), and ``budget.disposal.reentry_altitude_km`` (120 km when
+absent). The orbit-averaged method also gives the lifetime under each constant activity level
+(low, moderate, high) of the same model beside the case's scenario. The assumptions are printed
+beside the number with the lifetime caution. A long numerical run shows a progress bar on stderr when
 stderr is a terminal.
 """
 
@@ -30,8 +33,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         help="orbital lifetime of a case under atmospheric drag",
         description=(
             "Years until the perigee of CASE's orbit falls to the re-entry altitude, with the "
-            "exponential atmosphere at the case's solar-activity level and the spacecraft's "
-            "ballistic coefficient. Preliminary analysis: lifetime predictions carry large "
+            "case's density model (NRLMSIS 2.1 by default) and flux scenario and the "
+            "spacecraft's ballistic coefficient, and the value under each constant activity "
+            "level beside it. Preliminary analysis: lifetime predictions carry large "
             "uncertainty and must not be the only basis of a disposal-compliance claim."
         ),
     )
@@ -77,6 +81,7 @@ def lifetime_data(
     progress: Callable[[float], None] | None = None,
 ) -> dict[str, Any]:
     """The lifetime of a validated ``Case`` as plain data (JSON-ready), assumptions included."""
+    from ..analysis.flux_scenario import scenario_profiles
     from ..kernel.errors import InputError
     from ..kernel.forces import ballistic_coefficient_kg_m2
     from ..kernel.lifetime import lifetime_years
@@ -98,16 +103,25 @@ def lifetime_data(
     disposal = case.budget.disposal if case.budget is not None else None
     reentry_km = disposal.reentry_altitude_km if disposal is not None else _DEFAULT_REENTRY_KM
     elements = case.elements()
+    profiles = scenario_profiles(case)
     result = lifetime_years(
         elements,
         ballistic_coefficient_kg_m2=b,
-        solar_activity=case.force_model.solar_activity,
         reentry_altitude_km=reentry_km,
         method=method,
         max_years=max_years,
         body=body,
         progress=progress,
+        density=profiles[0][1],
     )
+    scenarios = [_scenario_row("case", result)]
+    if method == "orbit-averaged":
+        for name, profile in profiles[1:]:
+            other = lifetime_years(
+                elements, ballistic_coefficient_kg_m2=b, reentry_altitude_km=reentry_km,
+                max_years=result.max_years, body=body, density=profile,
+            )  # fmt: skip
+            scenarios.append(_scenario_row(name, other))
     jd1, jd2 = case.epoch_jd_utc()
     data: dict[str, Any] = {
         "title": case.meta.title,
@@ -122,6 +136,9 @@ def lifetime_data(
             str(utc_iso(jd1, jd2 + result.days, 0)) if result.reentered else None
         ),
         "searched_years": result.max_years,
+        "density_model": result.density_model,
+        "flux_scenario": result.flux_scenario,
+        "scenarios": scenarios,
         "assumptions": dict(result.assumptions),
         "caution": result.caution,
     }
@@ -130,6 +147,20 @@ def lifetime_data(
         data["lifetime_limit_years"] = limit
         data["within_limit_preliminary"] = bool(result.reentered and result.years <= limit)
     return data
+
+
+def _scenario_row(name: str, result: Any) -> dict[str, Any]:
+    return {
+        "scenario": name,
+        "flux_scenario": result.flux_scenario,
+        "lifetime_years": result.years if result.reentered else None,
+    }
+
+
+def _scenario_text(row: dict[str, Any], searched_years: float) -> str:
+    years = row["lifetime_years"]
+    value = f"{years:.2f} years" if years is not None else f"more than {searched_years:g} years"
+    return f"{value}, {row['flux_scenario']}"
 
 
 def _format_years(data: dict[str, Any]) -> str:
@@ -163,6 +194,10 @@ def lifetime_table(data: dict[str, Any]) -> str:
         verdict = "within" if data["within_limit_preliminary"] else "NOT within"
         rows.append(
             ("disposal limit", f"{data['lifetime_limit_years']:g} years: {verdict} (preliminary)")
+        )
+    for row in data.get("scenarios", [])[1:]:
+        rows.append(
+            (f"  at {row['scenario']} activity", _scenario_text(row, data["searched_years"]))
         )
     rows.extend((_label(name), text) for name, text in data["assumptions"].items())
     width = max(len(name) for name, _ in rows)

@@ -211,4 +211,9 @@ def run_disperse(args: argparse.Namespace) -> int:
     dispersions = dict(parse_disperse(text) for text in args.disperse)
     started = time.perf_counter()
     frame = disperse(case, dispersions, args.samples, args.seed, args.metrics, **_options(args))
-    return _finish(frame, args, out, criteria, started)
+    status = _finish(frame, args, out, criteria, started)
+    if "lifetime_percentiles" in frame.attrs:
+        from ..trade.lifetime_spread import lifetime_spread_lines
+
+        print("\n".join(lifetime_spread_lines(frame.attrs["lifetime_percentiles"])))
+    return status

@@ -69,6 +69,8 @@ _PUBLIC: dict[str, tuple[str, ...]] = {
     # Perturbations and propagation
     "j2": ("j2_secular_rates", "propagate_j2_mean", "sun_synchronous_inclination_deg"),
     "atmosphere": ("SOLAR_ACTIVITY_LEVELS", "SolarActivityLevel", "density_kg_m3"),
+    "flux": ("FLUX_LEVELS", "FluxHistory", "level_flux", "solar_cycle_flux", "table_flux"),
+    "nrlmsis": ("nrlmsis_density_kg_m3", "nrlmsis_profile"),
     "forces": ("ForceModel", "acceleration_km_s2", "ballistic_coefficient_kg_m2"),
     "cowell": ("CowellResult", "propagate_cowell"),
     "propagation": ("EarthOrientation", "Trajectory", "trajectory"),

@@ -313,6 +313,8 @@ def lifetime_years(
         ),
         "max_years": f"{max_years:g}",
     }
+    if density is not None and profile.notes:
+        assumptions["density_notes"] = "; ".join(f"{k}: {v}" for k, v in profile.notes.items())
     return LifetimeResult(
         years=years if reentered else math.inf,
         reentered=reentered,

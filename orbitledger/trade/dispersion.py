@@ -122,8 +122,9 @@ def disperse(
 
     Returns the DataFrame of :func:`orbitledger.trade.evaluate.evaluate_cases` (inputs, then
     metrics); ``attrs`` also hold ``seed``, ``bit_generator`` ("PCG64"), ``samples`` and the
-    ``dispersions``. ``options``: ``scheduler``, ``chunk_size``, ``progress``, ``repeat``,
-    ``max_memory_bytes``.
+    ``dispersions`` and, with the lifetime group, ``lifetime_percentiles``
+    (``orbitledger.trade.lifetime_spread``). ``options``: ``scheduler``, ``chunk_size``,
+    ``progress``, ``repeat``, ``max_memory_bytes``.
     """
     from .evaluate import as_case, evaluate_cases, refuse_if_too_large
 
@@ -140,4 +141,10 @@ def disperse(
         "samples": int(samples),
         "dispersions": {p: d.describe() for p, d in dispersions.items()},
     }
-    return evaluate_cases(case, inputs, metrics, kind="monte-carlo", attrs=attrs, **options)
+    frame = evaluate_cases(case, inputs, metrics, kind="monte-carlo", attrs=attrs, **options)
+    from .lifetime_spread import lifetime_percentiles
+
+    spread = lifetime_percentiles(frame)  # 5/50/95 % of the lifetime, when it was computed
+    if spread is not None:
+        frame.attrs["lifetime_percentiles"] = spread
+    return frame
