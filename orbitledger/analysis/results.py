@@ -18,6 +18,7 @@ from typing import Any
 
 from ..kernel.errors import InputError
 from .earth_orientation import earth_orientation_results
+from .imaging import imaging_results
 from .orbit_groups import j2_results, orbit_results
 from .result import Result
 from .window_groups import budget_results, contact_results, eclipse_results, lifetime_results
@@ -32,6 +33,7 @@ _GROUPS: dict[str, Callable[[Any], list[Result]]] = {
     "lifetime": lifetime_results,
     "budget": budget_results,
     "earth_orientation": earth_orientation_results,
+    "targets": imaging_results,
 }
 ALL_GROUPS = tuple(_GROUPS)
 FAST_GROUPS = ("orbit", "j2")
