@@ -154,3 +154,46 @@ def imaging_results(case: Any, trajectory: Any = None) -> list[Result]:
     if case.coverage is not None:
         rows += _coverage_rows(case_coverage(case, traj))
     return rows
+
+
+def imaging_rows(case_data: dict[str, Any]) -> list[dict[str, str]]:
+    """The record's rows on the sensor and the coverage region, from the case's data; none
+    when the case has neither targets nor a region."""
+    sensor = case_data.get("sensor")
+    if not sensor or not (case_data.get("targets") or case_data.get("coverage")):
+        return []
+    if sensor.get("off_nadir_max_deg") is not None:
+        reach = (
+            f"off-nadir angle up to {sensor['off_nadir_max_deg']:g} deg from the geocentric nadir"
+        )
+    else:
+        reach = (
+            f"swath {sensor['swath_km']:g} km: targets within {sensor['swath_km'] / 2:g} km "
+            "of the sub-satellite point (Earth central angle, sphere of the equatorial radius)"
+        )
+    sun = sensor.get("min_sun_elevation_deg")
+    light = (
+        "no lighting condition"
+        if sun is None
+        else f"Sun at least {sun:g} deg above the target's horizon"
+    )
+    rows = [
+        {
+            "topic": "Target access",
+            "value": f"{reach}; satellite above the target's horizon; {light}; geometric, no "
+            "refraction; revisit gaps between consecutive accesses (longest gap with the "
+            "window's edges)",
+        }
+    ]
+    region = case_data.get("coverage")
+    if region:
+        rows.append(
+            {
+                "topic": "Coverage region",
+                "value": f"lat {region['lat_min_deg']:g}..{region['lat_max_deg']:g} deg, lon "
+                f"{region['lon_min_deg']:g}..{region['lon_max_deg']:g} deg, grid every "
+                f"{region.get('step_deg', 1.0):g} deg (edges included); a point counts from "
+                "the first sample inside an access (good to one search step)",
+            }
+        )
+    return rows

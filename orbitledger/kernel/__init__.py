@@ -76,6 +76,16 @@ _PUBLIC: dict[str, tuple[str, ...]] = {
     # Geometry over a window
     "groundtrack": ("GroundTrack", "ground_track"),
     "passes": ("Pass", "PassSearch", "Station", "station_passes"),
+    "targets": (
+        "Access",
+        "Sensor",
+        "Target",
+        "TargetAccessSearch",
+        "reach_central_angle_deg",
+        "swath_off_nadir_deg",
+        "target_access",
+    ),
+    "coverage": ("Coverage", "coverage_grid", "coverage_work", "region_coverage"),
     "eclipses": (
         "Eclipse",
         "EclipseSearch",
