@@ -82,9 +82,9 @@ _PUBLIC: dict[str, tuple[str, ...]] = {
         "Target",
         "TargetAccessSearch",
         "reach_central_angle_deg",
-        "swath_off_nadir_deg",
         "target_access",
     ),
+    "viewing": ("central_angle_deg", "off_nadir_deg", "swath_off_nadir_deg"),
     "coverage": ("Coverage", "coverage_grid", "coverage_work", "region_coverage"),
     "eclipses": (
         "Eclipse",

@@ -26,6 +26,8 @@ from .errors import InputError
 from .events import _peak_candidates, refine_maxima
 from .propagation import Trajectory
 from .targets import (
+    _CHUNK_ELEMENTS,
+    MAX_ACCESS_SAMPLES,
     Sensor,
     _Geometry,
     reach_central_angle_deg,
@@ -44,9 +46,8 @@ __all__ = [
 
 MAX_COVERAGE_POINTS = 100_000
 """Grid points of one region (a 1 deg grid of the whole Earth has 65 341)."""
-MAX_COVERAGE_SAMPLES = 2_000_000_000
+MAX_COVERAGE_SAMPLES = MAX_ACCESS_SAMPLES
 """Grid points times time samples: about 2 minutes of work here; more is refused."""
-_CHUNK_ELEMENTS = 2_000_000
 
 
 @dataclass(frozen=True, eq=False)

@@ -37,6 +37,7 @@ from .frames import gcrf_to_itrf, itrf_from_geodetic
 from .propagation import Trajectory
 from .sun import sun_position_from_tt_km
 from .timescales import utc_iso
+from .viewing import central_angle_deg, off_nadir_deg, swath_off_nadir_deg
 
 __all__ = [
     "Access",
@@ -141,36 +142,6 @@ class TargetAccessSearch:
     notes: tuple[str, ...] = field(default_factory=tuple)
 
 
-def central_angle_deg(r_km: np.ndarray, site_km: np.ndarray) -> np.ndarray:
-    """Earth central angle between position vectors (..., 3), deg."""
-    dot = np.sum(r_km * site_km, axis=-1)
-    norm = np.linalg.norm(r_km, axis=-1) * np.linalg.norm(site_km, axis=-1)
-    return np.degrees(np.arccos(np.clip(dot / norm, -1.0, 1.0)))
-
-
-def off_nadir_deg(r_km: np.ndarray, site_km: np.ndarray) -> np.ndarray:
-    """Angle at the satellite r between the geocentric nadir -r and the target site, deg."""
-    d = site_km - r_km
-    dot = -np.sum(r_km * d, axis=-1)
-    norm = np.linalg.norm(r_km, axis=-1) * np.linalg.norm(d, axis=-1)
-    return np.degrees(np.arccos(np.clip(dot / norm, -1.0, 1.0)))
-
-
-def swath_off_nadir_deg(swath_km: float, altitude_km: float, radius_km: float) -> float:
-    """Off-nadir angle (deg) of the edge of a swath ``swath_km`` wide seen from ``altitude_km``
-    over a sphere of ``radius_km``: tan eta = sin rho sin lambda / (1 - sin rho cos lambda),
-    sin rho = R / (R + h), lambda = w / (2 R) (The New SMAD, Earth geometry viewed from space)."""
-    if not (altitude_km > 0.0 and radius_km > 0.0 and swath_km > 0.0):
-        raise InputError("swath_km", swath_km, "needs a positive swath, altitude and radius")
-    sin_rho = radius_km / (radius_km + altitude_km)
-    lam = swath_km / (2.0 * radius_km)
-    if lam >= math.acos(sin_rho):
-        raise InputError(
-            "sensor.swath_km", swath_km, f"reaches beyond the horizon from {altitude_km:.0f} km"
-        )
-    return math.degrees(math.atan2(sin_rho * math.sin(lam), 1.0 - sin_rho * math.cos(lam)))
-
-
 def target_search_step_s(period_s: float, sensor: Sensor, radius_km: float, a_km: float) -> float:
     """Sampling step, s: an overhead access spans at least six samples.
 
@@ -195,6 +166,10 @@ def reach_central_angle_deg(sensor: Sensor, radius_km: float, r_km: float) -> fl
 
 
 _COORDS = ("lat_deg", "lon_deg", "height_km")
+MAX_ACCESS_SAMPLES = 2_000_000_000
+"""Targets (or grid points) times time samples of one search: about two minutes of work here;
+more is refused with both numbers."""
+_CHUNK_ELEMENTS = 2_000_000
 
 
 class _Geometry:
@@ -318,32 +293,54 @@ def target_access(
     a_km = float(np.linalg.norm(traj.gcrf(0.0)[0]))
     step = target_search_step_s(traj.period_s, sensor, geo.radius_km, a_km)
     n = max(2, math.ceil(duration_s / step) + 1)
+    if len(targets) * n > MAX_ACCESS_SAMPLES:
+        raise InputError(
+            "targets",
+            f"{len(targets):,} targets x {duration_s / 86_400.0:g} days",
+            f"needs {len(targets) * n:,} target-samples (step {step:.1f} s); at most "
+            f"{MAX_ACCESS_SAMPLES:,}: use fewer targets or fewer days",
+        )
     t = np.linspace(0.0, duration_s, n)
-    values = sampled_margins(geo, t, np.arange(len(targets)))
-    iv = positive_intervals(geo.margin, t, values, tolerance_s)
-    left, right = iv.start_s, iv.end_s
+    samples = geo.sample(t)
+    size = max(1, _CHUNK_ELEMENTS // n)  # targets per chunk: arrays of about 2e6 numbers
+    parts = []
+    for lo in range(0, len(targets), size):
+        channels = np.arange(lo, min(lo + size, len(targets)))
+
+        def margin(x: np.ndarray, ch: np.ndarray, _c: np.ndarray = channels) -> np.ndarray:
+            return geo.margin(x, _c[ch])
+
+        found = positive_intervals(
+            margin, t, sampled_margins(geo, t, channels, samples), tolerance_s
+        )
+        parts.append((channels[found.channel], found))
+    iv_channel = np.concatenate([c for c, _ in parts])
+    left = np.concatenate([f.start_s for _, f in parts])
+    right = np.concatenate([f.end_s for _, f in parts])
+    start_clipped = np.concatenate([f.start_clipped for _, f in parts])
+    end_clipped = np.concatenate([f.end_clipped for _, f in parts])
     mid = 0.5 * (left + right)
-    best, _ = refine_maxima(geo.closeness, left, mid, right, iv.channel, tolerance_s)
+    best, _ = refine_maxima(geo.closeness, left, mid, right, iv_channel, tolerance_s)
     best = np.clip(best, left, right)
     r, sun = geo.sample(best)
-    parts = geo.parts(r, sun, iv.channel)
+    where = geo.parts(r, sun, iv_channel)
     stamps = utc_iso(*_utc(traj, np.concatenate([left, best, right])), decimals=1)
     m = left.size
     accesses = [
         Access(
-            target=targets[int(iv.channel[j])].name,
+            target=targets[int(iv_channel[j])].name,
             start_s=float(left[j]),
             best_s=float(best[j]),
             end_s=float(right[j]),
             start_utc=str(stamps[j]),
             best_utc=str(stamps[m + j]),
             end_utc=str(stamps[2 * m + j]),
-            min_off_nadir_deg=float(parts["off_nadir"][j]),
-            ground_distance_km=float(math.radians(parts["central"][j]) * geo.radius_km),
-            elevation_deg=float(parts["el"][j]),
-            sun_elevation_deg=float(parts["sun_el"][j]),
-            starts_open=bool(iv.start_clipped[j]),
-            ends_open=bool(iv.end_clipped[j]),
+            min_off_nadir_deg=float(where["off_nadir"][j]),
+            ground_distance_km=float(math.radians(where["central"][j]) * geo.radius_km),
+            elevation_deg=float(where["el"][j]),
+            sun_elevation_deg=float(where["sun_el"][j]),
+            starts_open=bool(start_clipped[j]),
+            ends_open=bool(end_clipped[j]),
         )
         for j in range(m)
     ]
