@@ -63,6 +63,7 @@ def test_case_without_targets_keeps_its_fingerprint() -> None:
         ({"targets": [{"name": "x", "lat_deg": 95.0, "lon_deg": 0.0}]}, "targets[0].lat_deg", "90"),
         ({"coverage": dict(REGION, lat_max_deg=10.0)}, "coverage.lat_max_deg", "lat_min_deg"),
         ({"coverage": dict(REGION, step_deg=0.0)}, "coverage.step_deg", ">"),
+        ({"coverage": dict(REGION, lon_max_deg=-20.0)}, "coverage.lon_max_deg", "east of it"),
         ({"targets": [dict(TARGETS[0], name=f"t{k}") for k in range(1001)]}, "targets", "1000"),
     ],
 )

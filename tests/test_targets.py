@@ -219,9 +219,13 @@ def test_coverage_agrees_with_target_access_point_by_point() -> None:
 
 
 def test_coverage_grid_edges_and_antimeridian() -> None:
-    lat, lon = coverage_grid(-10.0, 10.0, 170.0, -170.0, 5.0)
+    lat, lon = coverage_grid(-10.0, 10.0, 170.0, 190.0, 5.0)
     assert lat.size == 5 * 5
     assert set(np.round(lon, 9)) == {170.0, 175.0, -180.0, -175.0, -170.0}
+    lat, lon = coverage_grid(-90.0, 90.0, -180.0, 180.0, 10.0)  # the whole Earth
+    assert lat.size == 19 * 36 and len(set(np.round(lon, 9))) == 36
+    with pytest.raises(InputError, match="lon_max_deg"):
+        coverage_grid(0.0, 10.0, 10.0, 0.0, 1.0)
 
 
 def test_coverage_over_the_work_limit_is_refused_with_the_numbers(monkeypatch) -> None:

@@ -54,9 +54,11 @@ class CoverageRegion(CaseModel):
 
     lat_min_deg: Latitude
     lat_max_deg: Latitude
-    lon_min_deg: Longitude
-    """West edge, deg east; a box may cross 180 deg (lon_max_deg east of it, modulo 360)."""
-    lon_max_deg: Longitude
+    lon_min_deg: Annotated[float, Field(ge=-180.0, le=180.0)]
+    """West edge, deg east in [-180, 180]."""
+    lon_max_deg: Annotated[float, Field(ge=-180.0, le=540.0)]
+    """East edge, deg east, at least lon_min_deg and at most 360 deg east of it: a box across
+    180 deg runs past 180 (170 to 190); -180 to 180 is the whole Earth."""
     step_deg: ranged(0.0, 10.0, "deg", low_open=True) = 1.0
     """Grid step in latitude and longitude, deg (edges included)."""
 
@@ -67,6 +69,13 @@ class CoverageRegion(CaseModel):
                 "lat_max_deg",
                 self.lat_max_deg,
                 f"must not be below lat_min_deg ({self.lat_min_deg!r})",
+            )
+        if not (self.lon_min_deg <= self.lon_max_deg <= self.lon_min_deg + 360.0):
+            raise rule(
+                "lon_max_deg",
+                self.lon_max_deg,
+                f"must be from lon_min_deg ({self.lon_min_deg!r}) to 360 deg east of it "
+                "(a box across 180 deg runs past 180)",
             )
         return self
 

@@ -73,17 +73,25 @@ class Coverage:
 def coverage_grid(
     lat_min_deg: float, lat_max_deg: float, lon_min_deg: float, lon_max_deg: float, step_deg: float
 ) -> tuple[np.ndarray, np.ndarray]:
-    """Latitudes and longitudes (deg, flat arrays) of the grid points of the box, edges
-    included; the box may cross the antimeridian (lon_max < lon_min means through 180 deg)."""
+    """Latitudes and longitudes (deg, flat arrays; longitudes in [-180, 180)) of the grid
+    points of the box, edges included. The box runs east from lon_min_deg to lon_max_deg
+    (past 180 deg for a box across the antimeridian, e.g. 170 to 190); a span of 360 deg is
+    the whole circle, its east edge the west edge again (counted once)."""
     if not (math.isfinite(step_deg) and 0.0 < step_deg <= 90.0):
         raise InputError("coverage.step_deg", step_deg, "must be in (0, 90] deg")
     if not (-90.0 <= lat_min_deg <= lat_max_deg <= 90.0):
         raise InputError(
             "coverage.lat_max_deg", lat_max_deg, f"must be in [lat_min_deg ({lat_min_deg:g}), 90]"
         )
-    span = (lon_max_deg - lon_min_deg) % 360.0 if lon_max_deg != lon_min_deg else 0.0
+    span = lon_max_deg - lon_min_deg
+    if not (0.0 <= span <= 360.0):
+        raise InputError(
+            "coverage.lon_max_deg", lon_max_deg, "must be from lon_min_deg to 360 deg east of it"
+        )
     n_lat = int(math.floor((lat_max_deg - lat_min_deg) / step_deg + 1e-9)) + 1
     n_lon = int(math.floor(span / step_deg + 1e-9)) + 1
+    if span == 360.0 and abs((n_lon - 1) * step_deg - 360.0) < 1e-9:
+        n_lon -= 1
     if n_lat * n_lon > MAX_COVERAGE_POINTS:
         raise InputError(
             "coverage.step_deg",
