@@ -196,6 +196,15 @@ def test_swath_sensor_keeps_targets_within_half_the_swath() -> None:
     found = target_access(traj, [FENWICK_FEN, KURU_PLAIN], Sensor(swath_km=600.0), 3 * 86_400)
     assert found.accesses
     assert all(a.ground_distance_km <= 300.0 + 1e-6 for a in found.accesses)
+    # At each edge the target is half the swath from the sub-satellite direction (central
+    # angle times R, written out here with plain vectors), to the 0.01 s edge tolerance times
+    # the ground speed (7.6 km/s): 80 m.
+    sites = {t.name: itrf_from_geodetic(t.lat_deg, t.lon_deg, t.height_km) for t in found.targets}
+    for a in found.accesses:
+        r, _ = traj.itrf(np.array([a.start_s, a.end_s]))
+        s = sites[a.target]
+        cos_c = r @ s / np.linalg.norm(r, axis=-1) / np.linalg.norm(s)
+        assert np.max(np.abs(np.arccos(cos_c) * R_KM - 300.0)) < 0.08  # km
 
 
 def test_coverage_agrees_with_target_access_point_by_point() -> None:
