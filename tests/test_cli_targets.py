@@ -146,3 +146,17 @@ def test_record_rows_and_figure_pass_the_record_checks() -> None:
     assert "Target access" in topics and "Coverage region" in topics
     fig = coverage_figure(case_coverage(case), case.targets)
     assert problems(json_item(fig)) == []
+
+
+def test_a_sweep_evaluates_the_targets_metrics_as_case_results_do() -> None:
+    # A trade over altitude with revisit and coverage as metrics: each row equals the single
+    # case's own results (one function computes both, analysis.case_results).
+    from orbitledger.analysis import case_results
+    from orbitledger.trade import sweep
+
+    base = case_from_data(_data(window={"duration_s": 86_400.0, "step_s": 10.0}))
+    frame = sweep(base, {"orbit.altitude_km": [520.0, 560.0]}, metrics=["targets"], progress=False)
+    for k, altitude in enumerate([520.0, 560.0]):
+        single = case_results(base.with_changes({"orbit.altitude_km": altitude}), ["targets"])
+        for name in ("revisit_max_gap_h", "coverage_fraction", "target_accesses_in_window"):
+            assert single[name].agrees_with(float(frame[name].iloc[k]))
