@@ -271,3 +271,11 @@ def test_coverage_figure_across_the_antimeridian_is_continuous() -> None:
     data = coverage_data(cov)
     assert np.min(data["covered"]["lon_deg"]) == 170.0
     assert np.max(data["covered"]["lon_deg"]) == 190.0
+
+
+def test_target_search_over_the_work_limit_is_refused_with_the_numbers(monkeypatch) -> None:
+    from orbitledger.kernel import targets as targets_module
+
+    monkeypatch.setattr(targets_module, "MAX_ACCESS_SAMPLES", 1000)
+    with pytest.raises(InputError, match=r"2 targets x 1 days.*needs [\d,]+ target-samples"):
+        target_access(_kestrel(), [FENWICK_FEN, KURU_PLAIN], Sensor(30.0), 86_400.0)
