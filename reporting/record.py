@@ -181,6 +181,7 @@ def models_and_assumptions(case_data: dict[str, Any]) -> list[dict[str, str]]:
         },
         *_earth_orientation_rows(case_data, eop),
         *_site_rows(case_data),
+        *_imaging_rows(case_data),
         {"topic": "Density model", "value": density},
         {"topic": "Solar activity", "value": flux},
     ]
@@ -206,6 +207,12 @@ def _site_rows(case_data: dict[str, Any]) -> list[dict[str, str]]:
     from orbitledger.analysis.contacts import site_rows
 
     return site_rows(case_data.get("stations") or [])
+
+
+def _imaging_rows(case_data: dict[str, Any]) -> list[dict[str, str]]:
+    from orbitledger.analysis.imaging import imaging_rows
+
+    return imaging_rows(case_data)
 
 
 def cautions_for(cases: list[dict[str, Any]]) -> list[str]:

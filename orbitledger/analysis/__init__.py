@@ -13,11 +13,12 @@ from .inputs import (
 )
 from .manoeuvres import budget_for_case, burn_plan_for_case
 from .result import Result
-from .results import ALL_GROUPS, FAST_GROUPS, case_results, results_as_values
+from .results import ALL_GROUPS, FAST_GROUPS, STANDARD_GROUPS, case_results, results_as_values
 
 __all__ = [
     "ALL_GROUPS",
     "FAST_GROUPS",
+    "STANDARD_GROUPS",
     "Result",
     "ballistic_coefficient_kg_m2",
     "budget_for_case",

@@ -18,11 +18,12 @@ from typing import Any
 
 from ..kernel.errors import InputError
 from .earth_orientation import earth_orientation_results
+from .imaging import imaging_results
 from .orbit_groups import j2_results, orbit_results
 from .result import Result
 from .window_groups import budget_results, contact_results, eclipse_results, lifetime_results
 
-__all__ = ["ALL_GROUPS", "FAST_GROUPS", "case_results", "results_as_values"]
+__all__ = ["ALL_GROUPS", "FAST_GROUPS", "STANDARD_GROUPS", "case_results", "results_as_values"]
 
 _GROUPS: dict[str, Callable[[Any], list[Result]]] = {
     "orbit": orbit_results,
@@ -34,17 +35,24 @@ _GROUPS: dict[str, Callable[[Any], list[Result]]] = {
     "earth_orientation": earth_orientation_results,
 }
 ALL_GROUPS = tuple(_GROUPS)
+# Groups of the record's standard results (and of ``verify``) that the editor's results panel
+# does not list yet: its titles and per-group caches live in ``widgets``, which adds a group
+# to ALL_GROUPS together with them.
+_NOT_IN_EDITOR: dict[str, Callable[[Any], list[Result]]] = {"targets": imaging_results}
+_GROUPS.update(_NOT_IN_EDITOR)
+STANDARD_GROUPS = (*ALL_GROUPS, *_NOT_IN_EDITOR)
 FAST_GROUPS = ("orbit", "j2")
 
 
 def case_results(case: Any, groups: Iterable[str] | None = None) -> dict[str, Result]:
     """The named results of ``case`` (an ``orbitledger.case.Case``), in panel order.
 
-    ``groups`` picks result groups (default: all of them, see ``ALL_GROUPS``); a group that
+    ``groups`` picks result groups (default: all of them, ``STANDARD_GROUPS``: the editor's
+    ``ALL_GROUPS`` and ``targets``); a group that
     does not apply to the case (no stations, no spacecraft, a hyperbolic orbit) gives nothing.
     Raises ``InputError`` for an unknown group name.
     """
-    chosen = ALL_GROUPS if groups is None else tuple(groups)
+    chosen = STANDARD_GROUPS if groups is None else tuple(groups)
     out: dict[str, Result] = {}
     for name in chosen:
         if name not in _GROUPS:

@@ -21,7 +21,9 @@ from .json_limits import find_long_integer, long_integer_error
 from .orbit import ApsidesOrbit, ClassicalOrbit, Orbit
 from .plan import AtEpoch, Budget, Burn
 from .sections import BodySection, EarthOrientation, ForceModel, Meta, Spacecraft, Station, Window
+from .sites import unless_default
 from .source import Source
+from .targets import CoverageRegion, Sensor, Target, check_imaging
 from .utc import utc_seconds_between, utc_to_jd
 from .validation import case_error_from_validation, check_text_values
 
@@ -57,6 +59,9 @@ class Case(CaseModel):
     orbit: Orbit
     spacecraft: Spacecraft | None = None
     stations: list[Station] = Field(default_factory=list, max_length=MAX_LIST_ITEMS)
+    targets: list[Target] = unless_default([], max_length=MAX_LIST_ITEMS)
+    sensor: Sensor | None = Field(None, exclude_if=lambda v: v is None)
+    coverage: CoverageRegion | None = Field(None, exclude_if=lambda v: v is None)
     window: Window = Field(default_factory=Window)
     earth_orientation: EarthOrientation = Field(default_factory=EarthOrientation)
     force_model: ForceModel = Field(default_factory=ForceModel)
@@ -100,6 +105,7 @@ class Case(CaseModel):
                     f"the same name as stations[{names[station.name]}]; station names are unique",
                 )
             names[station.name] = k
+        check_imaging(self)
         previous: tuple[int, str] | None = None
         for k, burn in enumerate(self.burns):
             if isinstance(burn.at, AtEpoch):

@@ -20,6 +20,7 @@ VERB_MODULES = [
     "orbitledger.cli.case_verbs",  # new, summary, schema
     "orbitledger.cli.environment_verbs",  # passes, eclipses, groundtrack, ephemeris
     "orbitledger.cli.seasons_verbs",  # seasons
+    "orbitledger.cli.targets_verbs",  # targets, coverage
     "orbitledger.cli.lifetime_verbs",  # lifetime
     "orbitledger.cli.design_verbs",  # budget, transfer
     "orbitledger.cli.exchange_verbs",  # import, export, ephemeris-diff

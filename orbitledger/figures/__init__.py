@@ -8,6 +8,7 @@ notebook and tags it for the record. See docs/figures.md.
 """
 
 from .budget import budget_data, budget_figure
+from .coverage import coverage_data, coverage_figure
 from .ephemeris_difference import ephemeris_difference_data, ephemeris_difference_figure
 from .groundtrack import ground_track_data, ground_track_figure, station_circle
 from .inertial import inertial_data, inertial_figure, project, reproject
@@ -41,6 +42,8 @@ __all__ = [
     "budget_figure",
     "contact_timeline_data",
     "contact_timeline_figure",
+    "coverage_data",
+    "coverage_figure",
     "eclipse_timeline_data",
     "eclipse_timeline_figure",
     "ensure_notebook_bokehjs",

@@ -78,6 +78,16 @@ _PUBLIC: dict[str, tuple[str, ...]] = {
     # Geometry over a window
     "groundtrack": ("GroundTrack", "ground_track"),
     "passes": ("Pass", "PassSearch", "Station", "station_passes"),
+    "targets": (
+        "Access",
+        "Sensor",
+        "Target",
+        "TargetAccessSearch",
+        "reach_central_angle_deg",
+        "target_access",
+    ),
+    "viewing": ("central_angle_deg", "off_nadir_deg", "swath_off_nadir_deg"),
+    "coverage": ("Coverage", "coverage_grid", "coverage_work", "region_coverage"),
     "eclipses": (
         "Eclipse",
         "EclipseSearch",

@@ -10,7 +10,8 @@ results, so that a sweep and the single-case views agree. Metrics come in groups
   repeat-ground-track mismatch, see :func:`repeat_track_metrics`). The kernel functions take
   arrays of elements; the elements of every case are built at once from the varied inputs.
 - per case, through ``case_results(case, [group])``: ``eclipses``, ``contacts`` (passes and
-  contact minutes per day), ``lifetime`` and ``budget`` (the delta-v budget). These propagate
+  contact minutes per day), ``lifetime``, ``budget`` (the delta-v budget) and ``targets``
+  (target revisit and region coverage, see ``analysis.imaging``). These propagate
   over the analysis window (or over years), so they are the ones worth a cluster.
 
 Where a varied input changes the orbit in a way the vectorised path does not model (a body
@@ -47,7 +48,7 @@ __all__ = [
 ]
 
 VECTOR_GROUPS = ("orbit", "j2", "repeat_track")
-CASE_GROUPS = ("eclipses", "contacts", "lifetime", "budget")
+CASE_GROUPS = ("eclipses", "contacts", "lifetime", "budget", "targets")
 METRIC_GROUPS = VECTOR_GROUPS + CASE_GROUPS
 
 # Orbit-group result name -> the kernel quantity it is (elements field or orbit_summary key).
@@ -70,6 +71,7 @@ GROUP_WIDTH = {
     "contacts": 5,
     "lifetime": 2,
     "budget": 4,
+    "targets": 80,
 }
 
 
