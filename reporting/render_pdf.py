@@ -118,7 +118,8 @@ def wait_for_figures(page: Any, timeout_ms: float = 60_000) -> None:
 def _footer(record: dict[str, Any]) -> str:
     rev = record.get("revision")
     label = escape(
-        f"{record['record_id']} rev {rev if rev is not None else 'unrecorded'} · {record.get('status', '')}"
+        f"{record['record_id']} rev {rev if rev is not None else 'unrecorded'} · "
+        f"{record.get('status', '')} when printed"  # signatures added later: on the cover
     )
     title = escape(record.get("title", ""))[:90]
     return (

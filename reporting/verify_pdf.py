@@ -313,7 +313,8 @@ def _check_text(report: Any, record: dict[str, Any], texts: list[str]) -> None:
             "PDF text: as the record says", False, "the record does not list what its page shows"
         )
         return
-    label = f"{record.get('record_id')} rev {_label(record)} · {record.get('status', '')}"
+    status = f"{record.get('status', '')} when printed"  # render_pdf._footer
+    label = f"{record.get('record_id')} rev {_label(record)} · {status}"
     title = unescape(escape(str(record.get("title", "")))[:90])
     difference = compare_pages(paper_stream(sections), texts, [[label, title]] * len(texts))
     report.add("PDF text: as the record says", difference is None, difference or "")
