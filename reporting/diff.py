@@ -10,7 +10,15 @@ import json
 from dataclasses import dataclass
 from typing import Any
 
-__all__ = ["Change", "diff_records", "flatten", "format_side_by_side", "summary_lines"]
+__all__ = [
+    "BY_NAME",
+    "Change",
+    "diff_records",
+    "flatten",
+    "format_side_by_side",
+    "same_input",
+    "summary_lines",
+]
 
 
 @dataclass(frozen=True)
@@ -33,18 +41,46 @@ class Change:
         return "changed"
 
 
+# Lists whose order means nothing: their items are matched by name across cases and
+# revisions (``budget.allowances['collision avoidance'].dv_km_s``), so that one case's
+# "launch dispersion correction" is never set against another's "collision avoidance".
+BY_NAME = frozenset({"budget.allowances", "stations"})
+
+
+def _item_keys(value: list[Any], prefix: str) -> list[str]:
+    names = [v.get("name") if isinstance(v, dict) else None for v in value]
+    named = all(isinstance(n, str) and n and "'" not in n for n in names)
+    if prefix in BY_NAME and named and len(set(names)) == len(names):
+        return [f"{prefix}['{n}']" for n in names]
+    return [f"{prefix}[{i}]" for i in range(len(value))]
+
+
 def flatten(value: Any, prefix: str = "") -> dict[str, Any]:
-    """``{"orbit.altitude_km": 540.0, "stations[0].name": ...}`` from nested JSON data."""
+    """``{"orbit.altitude_km": 540.0, "stations['Kiruna'].lat_deg": ...}`` from nested JSON
+    data; items of the lists in ``BY_NAME`` keyed by their name (in their order), others by
+    position."""
     out: dict[str, Any] = {}
     if isinstance(value, dict):
         for key in sorted(value):
             out.update(flatten(value[key], f"{prefix}.{key}" if prefix else str(key)))
     elif isinstance(value, list) and value and any(isinstance(v, dict | list) for v in value):
-        for i, item in enumerate(value):
-            out.update(flatten(item, f"{prefix}[{i}]"))
+        for key, item in zip(_item_keys(value, prefix), value, strict=True):
+            out.update(flatten(item, key))
     else:
         out[prefix] = value
     return out
+
+
+def same_input(a: Any, b: Any) -> bool:
+    """Two values of one input path are the same as the inputs table shows them ([] as unset)."""
+    from .display import UNSET, display_input
+
+    def kind(v: Any) -> str:
+        number = isinstance(v, int | float) and not isinstance(v, bool)
+        return "number" if number else type(v).__name__
+
+    shown = display_input(a)
+    return shown == display_input(b) and (shown == UNSET or kind(a) == kind(b))
 
 
 def _case_fields(record: dict[str, Any]) -> dict[str, dict[str, Any]]:
@@ -70,7 +106,7 @@ def diff_records(old: dict[str, Any], new: dict[str, Any]) -> list[Change]:
     for case in sorted(set(old_cases) | set(new_cases)):
         a, b = old_cases.get(case, {}), new_cases.get(case, {})
         for path in sorted(set(a) | set(b)):
-            if a.get(path) != b.get(path) or (path in a) != (path in b):
+            if not same_input(a.get(path), b.get(path)):
                 changes.append(Change("inputs", case, path, a.get(path), b.get(path)))
     for where, get in (("results", _named), ("standard", _standard)):
         a, b = get(old), get(new)

@@ -9,8 +9,15 @@ The record's JSON keeps every value at full precision; the page shows it rounded
   1e-4 and from 1e15);
 - an angle within noise of zero as ``0`` (below 1e-9 deg, 1e-11 rad, 1e-6 arcsec: common
   practice for double-precision angle arithmetic, whose rounding error is near 1e-13 deg);
-- a date more than three years from the record's build date to the day, not the second
-  (a prediction that far ahead is not good to the second).
+- a date more than three calendar years from the record's build date to the day, not the
+  second (a prediction that far ahead is not good to the second): the calendar day as the
+  date is written (an event at 23:59:59.9 UTC stays on its day), with the three years counted
+  by the calendar in exact integer time (``datetime``), never through float days;
+- a case-file value of the inputs table as written (``display_input``), unset or an empty list
+  as "—": a case that leaves a list out and one that writes ``[]`` show the same.
+
+The template and ``verify`` both format through these functions: a value is compared as it
+is displayed, by one rule.
 """
 
 from __future__ import annotations
@@ -20,10 +27,18 @@ import re
 from datetime import datetime, timezone
 from typing import Any
 
-__all__ = ["display_number", "display_result", "display_value", "noise_floor"]
+__all__ = [
+    "UNSET",
+    "display_input",
+    "display_number",
+    "display_result",
+    "display_value",
+    "noise_floor",
+]
 
 _ANGLE_NOISE = {"deg": 1e-9, "rad": 1e-11, "arcsec": 1e-6}
-_FAR_DAYS = 3 * 365.25
+_FAR_YEARS = 3
+UNSET = "—"
 _ISO = re.compile(r"^(\d{4}-\d{2}-\d{2})T\d{2}:\d{2}:\d{2}(\.\d+)?Z$")
 
 
@@ -52,7 +67,7 @@ def _strip(text: str) -> str:
 def display_number(value: Any, rel_tol: float, abs_tol: float, unit: str = "") -> str:
     """``value`` rounded to the precision its tolerance supports (module doc)."""
     if value is None:
-        return "—"
+        return UNSET
     if isinstance(value, bool) or not isinstance(value, int | float):
         return _plain(value)  # "NaN", "Infinity" as the record writes them, or text
     value = float(value)
@@ -73,25 +88,45 @@ def display_number(value: Any, rel_tol: float, abs_tol: float, unit: str = "") -
     return _strip(f"{rounded:.{digits - 1}e}")
 
 
+def display_input(value: Any) -> str:
+    """A case-file value as the inputs table shows it: as written, unset or ``[]`` as "—"."""
+    if value is None or (isinstance(value, list | dict) and not value):
+        return UNSET
+    return _plain(value)
+
+
 def display_value(value: Any, unit: str = "", built_utc: str | None = None) -> str:
     """A value without a tolerance (a named result): angles near zero as 0, far dates by day."""
     if isinstance(value, float) and math.isfinite(value) and abs(value) <= noise_floor(unit):
         return "0"
     if isinstance(value, str) and built_utc:
         found = _ISO.match(value)
-        if found and _days_apart(value, built_utc) > _FAR_DAYS:
+        if found and _beyond_years(value, built_utc, _FAR_YEARS):
             return found.group(1)
     return _plain(value)
 
 
-def _days_apart(a: str, b: str) -> float:
-    def parse(text: str) -> datetime:
-        return datetime.fromisoformat(text.replace("Z", "+00:00")).astimezone(timezone.utc)
+def _parse_utc(text: str) -> datetime:
+    return datetime.fromisoformat(text.replace("Z", "+00:00")).astimezone(timezone.utc)
 
+
+def _add_years(when: datetime, years: int) -> datetime:
     try:
-        return abs((parse(a) - parse(b)).total_seconds()) / 86400.0
+        return when.replace(year=when.year + years)
+    except ValueError:  # 29 February in a common year: the day after 28 February
+        return when.replace(year=when.year + years, month=3, day=1)
+
+
+def _beyond_years(a: str, b: str, years: int) -> bool:
+    """``a`` lies more than ``years`` calendar years before or after ``b`` (exact, no floats)."""
+    try:
+        when, built = _parse_utc(a), _parse_utc(b)
     except ValueError:
-        return 0.0
+        return False
+    try:
+        return when > _add_years(built, years) or when < _add_years(built, -years)
+    except (ValueError, OverflowError):  # beyond year 1 or 9999: far by any measure
+        return True
 
 
 def display_result(row: dict[str, Any], built_utc: str | None = None) -> str:

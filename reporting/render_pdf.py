@@ -28,7 +28,14 @@ from typing import Any
 
 from .record import canonical_dumps
 
-__all__ = ["BrowserMissing", "PdfPrinter", "chromium", "find_browser", "print_record_pdf"]
+__all__ = [
+    "BrowserMissing",
+    "PdfPrinter",
+    "chromium",
+    "find_browser",
+    "info_entries",
+    "print_record_pdf",
+]
 
 log = logging.getLogger("orbitledger.reporting")
 
@@ -111,7 +118,8 @@ def wait_for_figures(page: Any, timeout_ms: float = 60_000) -> None:
 def _footer(record: dict[str, Any]) -> str:
     rev = record.get("revision")
     label = escape(
-        f"{record['record_id']} rev {rev if rev is not None else 'unrecorded'} · {record.get('status', '')}"
+        f"{record['record_id']} rev {rev if rev is not None else 'unrecorded'} · "
+        f"{record.get('status', '')} when printed"  # signatures added later: on the cover
     )
     title = escape(record.get("title", ""))[:90]
     return (
@@ -206,6 +214,21 @@ class PdfPrinter:
         self._jobs.put(None)
 
 
+def info_entries(record: dict[str, Any]) -> dict[str, str]:
+    """The document information the build writes (``verify_pdf`` expects exactly these)."""
+    rev = record.get("revision")
+    label = str(rev) if rev is not None else "unrecorded"
+    return {
+        "/Title": f"{record.get('title')} ({record.get('record_id')} rev {label})",
+        "/Subject": "orbitledger calculation record",
+        "/Author": (record.get("prepared") or {}).get("name", ""),
+        "/Keywords": f"record_id={record.get('record_id')}; revision={label}; status={record.get('status')}",
+        "/OrbitLedgerRecordId": str(record.get("record_id")),
+        "/OrbitLedgerRevision": label,
+        "/Creator": f"orbitledger {(record.get('environment') or {}).get('orbitledger', '')}",
+    }
+
+
 def attach(pdf: bytes, record: dict[str, Any], notebook: bytes) -> bytes:
     """The PDF with metadata and attachments: record JSON, executed notebook, case files."""
     from pypdf import PdfWriter
@@ -217,19 +240,7 @@ def attach(pdf: bytes, record: dict[str, Any], notebook: bytes) -> bytes:
 
     # An incremental update: Chromium's PDF stays as printed, the additions follow it.
     writer = PdfWriter(io.BytesIO(pdf), incremental=True)
-    rev = record.get("revision")
-    label = str(rev) if rev is not None else "unrecorded"
-    writer.add_metadata(
-        {
-            "/Title": f"{record['title']} ({record['record_id']} rev {rev if rev is not None else 'unrecorded'})",
-            "/Subject": "orbitledger calculation record",
-            "/Author": record.get("prepared", {}).get("name", ""),
-            "/Keywords": f"record_id={record['record_id']}; revision={label}; status={record.get('status')}",
-            "/OrbitLedgerRecordId": record["record_id"],
-            "/OrbitLedgerRevision": label,
-            "/Creator": f"orbitledger {record.get('environment', {}).get('orbitledger', '')}",
-        }
-    )
+    writer.add_metadata(info_entries(record))
     writer.add_attachment("record.json", canonical_dumps(record).encode("utf-8"))
     writer.add_attachment("notebook.ipynb", notebook)
     for case in record.get("inputs", []):

@@ -74,10 +74,13 @@ _SECTION_ORDER = (
 
 
 def _cell(path: str, value: Any) -> dict[str, Any]:
+    from .display import UNSET, display_input
+
+    text = display_input(value)  # verify_page.table_values formats with the same function
     return {
-        "text": "—" if value is None else format_value(value),
+        "text": text,
         "numeric": isinstance(value, int | float) and not isinstance(value, bool),
-        "unset": value is None,
+        "unset": text == UNSET,
     }
 
 
@@ -100,7 +103,7 @@ def inputs_side_by_side(inputs: list[dict[str, Any]]) -> list[dict[str, Any]]:
     Rows are grouped by case-file section; a row whose values differ between the cases is
     marked, so a trade between candidates reads at a glance.
     """
-    from .diff import flatten
+    from .diff import flatten, same_input
 
     flat = [flatten(json.loads(case["canonical"])) for case in inputs]
     tables = []
@@ -118,7 +121,7 @@ def inputs_side_by_side(inputs: list[dict[str, Any]]) -> list[dict[str, Any]]:
                     "path": path,
                     "unit": unit_of(path),
                     "cells": [_cell(path, v) for v in values],
-                    "differs": len(chunk) > 1 and any(v != values[0] for v in values),
+                    "differs": len(chunk) > 1 and not all(same_input(v, values[0]) for v in values),
                 }
             )
         tables.append(

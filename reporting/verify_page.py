@@ -187,11 +187,7 @@ def check_page(report: Any, record: dict[str, Any], html: str) -> None:
 def table_values(record: dict[str, Any]) -> dict[str, str]:
     """What the tables must show for each value of the record (the templates' formatting)."""
     from .diff import flatten
-    from .display import display_result
-    from .templating import format_value
-
-    def text(value: Any) -> str:
-        return "—" if value is None else format_value(value)
+    from .display import display_input, display_result
 
     built = record.get("built_utc")
     out = {f"r|{r['name']}": display_result(r, built) for r in record.get("results", [])}
@@ -204,5 +200,5 @@ def table_values(record: dict[str, Any]) -> dict[str, str]:
         except ValueError:
             continue  # a broken canonical text is reported by the fingerprint check
         for path, value in fields.items():
-            out[f"i|{case['name']}|{path}"] = text(value)
+            out[f"i|{case['name']}|{path}"] = display_input(value)
     return out

@@ -8,7 +8,8 @@ the kinds of its annotations). ``check_pdf(report, record, data, attachments)`` 
 
 - attachments: exactly those the build writes (the record's own, the notebook, one per case,
   ``pages.json``); nothing added;
-- metadata: the document information names this record's id, revision, title and status;
+- metadata: the document information is what the build wrote (``render_pdf.info_entries``:
+  record id, revision, title, status, author, creator), nothing added but dates and producer;
 - revisions: every incremental update after the build's is a signature revision that pyhanko
   reads as one (``PdfFileReader.embedded_signatures``, each covering its whole revision), that
   writes only what adding a signature writes (the signature field, its widget and signature
@@ -36,7 +37,8 @@ from .record import canonical_dumps
 __all__ = ["PAGES_ATTACHMENT", "check_pdf", "page_digests"]
 
 PAGES_ATTACHMENT = "pages.json"
-_PAGES_SCHEMA = "orbitledger.pdf-pages/1"
+# Schema /2: the digests of /1 were all of empty data (a decoded content stream tests falsy).
+_PAGES_SCHEMA = "orbitledger.pdf-pages/2"
 # Objects an added signature may rewrite (besides the ones it introduces), and the entries of
 # the catalogue and of a page it may change.
 _SIGNATURE_TOUCHES = {"/Catalog", "/Page", "/Metadata", "/AcroForm", "/Info", "/DSS", "/Annots"}
@@ -68,7 +70,8 @@ def _page_digest(page: Any) -> dict[str, Any]:
     drawn: list[str] = []
     _data_sha(page, set(), drawn)
     return {
-        "content": hashlib.sha256(contents.get_data() if contents else b"").hexdigest(),
+        # ``is not None``: a decoded content stream is an empty (so falsy) dictionary in pypdf
+        "content": hashlib.sha256(b"" if contents is None else contents.get_data()).hexdigest(),
         "xobjects": hashlib.sha256("\n".join(drawn).encode()).hexdigest(),
         "annotations": [str(a.get_object().get("/Subtype")) for a in page.get("/Annots") or []],
     }
@@ -99,19 +102,22 @@ def _check_attachments(report: Any, record: dict[str, Any], attachments: dict[st
     report.add("PDF attachments: exactly those the build writes", not detail, detail)
 
 
+# Entries of the document information that Chromium and the signing may write (dates, producer).
+_INFO_FREE = {"/Producer", "/CreationDate", "/ModDate"}
+
+
 def _check_metadata(report: Any, record: dict[str, Any], reader: Any) -> None:
+    from .render_pdf import info_entries
+
     info = reader.metadata or {}
-    label = _label(record)
-    expected = {
-        "/OrbitLedgerRecordId": record.get("record_id"),
-        "/OrbitLedgerRevision": label,
-        "/Title": f"{record.get('title')} ({record.get('record_id')} rev {label})",
-        "/Keywords": f"record_id={record.get('record_id')}; revision={label}; status={record.get('status')}",
-    }
+    expected = info_entries(record)
     wrong = [
         f"{k[1:]} says {info.get(k)!r}, the record {v!r}"
         for k, v in expected.items()
         if info.get(k) != v
+    ]
+    wrong += [
+        f"{k[1:]} added ({info[k]!r})" for k in sorted(set(info) - set(expected) - _INFO_FREE)
     ]
     report.add("PDF metadata: agrees with the record", not wrong, "; ".join(wrong[:2]))
 
@@ -246,10 +252,18 @@ def _check_pages(
     pages = reader.pages
     problems = []
     try:
-        built = json.loads(digests)["pages"]
+        stored = json.loads(digests)
+        built = stored["pages"]
     except (TypeError, ValueError, KeyError):
         built = None
         problems.append("pages.json is missing or unreadable")
+    else:
+        if stored.get("schema") != _PAGES_SCHEMA:
+            built = None
+            problems.append(
+                f"pages.json is of schema {stored.get('schema')!r}, not {_PAGES_SCHEMA!r}: "
+                "its page digests cannot be checked (build the record again)"
+            )
     n = len(pages)
     for i, text in enumerate(texts, start=1):
         if f"page {i} of {n}" not in " ".join(text.split()):
@@ -299,7 +313,8 @@ def _check_text(report: Any, record: dict[str, Any], texts: list[str]) -> None:
             "PDF text: as the record says", False, "the record does not list what its page shows"
         )
         return
-    label = f"{record.get('record_id')} rev {_label(record)} · {record.get('status', '')}"
+    status = f"{record.get('status', '')} when printed"  # render_pdf._footer
+    label = f"{record.get('record_id')} rev {_label(record)} · {status}"
     title = unescape(escape(str(record.get("title", "")))[:90])
     difference = compare_pages(paper_stream(sections), texts, [[label, title]] * len(texts))
     report.add("PDF text: as the record says", difference is None, difference or "")
