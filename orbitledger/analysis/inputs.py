@@ -80,6 +80,10 @@ def case_trajectory(
 
         return case_tle_trajectory(case, duration_s=duration_s, eop=case_earth_orientation(case))
     numerical = fm.propagator == "numerical"
+    if numerical:
+        from .estimates import check_estimate, numerical_estimate
+
+        check_estimate(numerical_estimate(case, duration_s))
     return trajectory(
         fm.propagator,
         case.elements(),
