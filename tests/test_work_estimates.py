@@ -187,3 +187,25 @@ def test_verify_refuses_a_self_consistent_record_over_the_limits_before_recomput
     assert "over 3650 days would need" in out + err and MEMORY_LIMIT_ENV in out + err
     assert "not recomputed" in out + err
     print(f"verify refused in {elapsed:.2f} s")  # reported, not asserted (RULES: no timing)
+
+
+def test_an_oem_export_at_a_millisecond_step_is_refused_before_sampling(tmp_path, capsys):
+    path = _write(tmp_path, copy.deepcopy(STARTER_DATA))
+    out = tmp_path / "k.oem"
+    status = main(["export", "--format", "oem", "--step", "0.001", str(path), "-o", str(out)])
+    _, err = capsys.readouterr()
+    assert status == 2 and err.count("\n") == 1, err
+    assert "step_s = 0.001: over 1 days would need" in err and "for the ephemeris" in err, err
+    assert not out.exists()
+
+
+def test_a_century_of_seasons_every_hundredth_of_a_day_is_refused_by_the_work_limit(
+    tmp_path, capsys
+):
+    # 100 years x 365.25 days / 0.01 day = 3.65e6 orbits, 720 samples each (kernel.seasons).
+    path = _write(tmp_path, copy.deepcopy(STARTER_DATA))
+    status = main(["seasons", str(path), "--years", "100", "--step-days", "0.01"])
+    _, err = capsys.readouterr()
+    assert status == 2 and err.count("\n") == 1, err
+    assert "--step-days = 0.01: over 100 years would need about 2.63e+09 evaluations" in err, err
+    assert "use a larger --step-days or fewer --years" in err

@@ -47,6 +47,7 @@ __all__ = [
     "check_window",
     "memory_limit_bytes",
     "numerical_estimate",
+    "seasons_estimate",
     "window_estimate",
     "work_limit",
 ]
@@ -70,6 +71,7 @@ _WHAT = {
     "ephemeris": "the ephemeris",
     "eclipses": "the eclipse search",
     "numerical": "the numerical propagation",
+    "seasons": "the seasons series",
 }
 # The numerical integrator (DOP853, rtol 1e-10) used 5,387 right-hand sides over one day of
 # the 540 km starter orbit (15.2 orbits): about 354 an orbit; 12 a step, about 600 bytes of
@@ -194,11 +196,29 @@ def numerical_estimate(case: Any, duration_s: float | None = None) -> Estimate:
     return _numerical(case, duration, _period_s(case) or duration)
 
 
-def window_estimate(case: Any, analysis: str) -> Estimate:
+def seasons_estimate(span_days: float, step_days: float, samples_per_orbit: int = 720) -> Estimate:
+    """The seasons series: one orbit every ``step_days`` over ``span_days``, each sampled at
+    ``samples_per_orbit`` points (``kernel.seasons``, in chunks, so its memory is bounded)."""
+    orbits = span_days / step_days + 1.0
+    return Estimate(
+        "seasons",
+        0.0,
+        orbits * samples_per_orbit,
+        "--step-days",
+        step_days,
+        f"over {span_days / 365.25:.4g} years",
+        "use a larger --step-days or fewer --years",
+    )
+
+
+def window_estimate(
+    case: Any, analysis: str, *, step_s: float | None = None, step_field: str = "window.step_s"
+) -> Estimate:
     """The estimate of ``analysis`` (``passes``, ``eclipses``, ``groundtrack``, ``ephemeris``,
-    ``numerical``) over the case's analysis window."""
+    ``numerical``) over the case's analysis window (sampled every ``step_s`` when given, an
+    option named ``step_field``, instead of ``window.step_s``)."""
     duration = float(case.window.duration_s)
-    step = float(case.window.step_s)
+    step = float(case.window.step_s if step_s is None else step_s)
     period = _period_s(case)
     span = _days(duration)
     if analysis == "numerical":
@@ -220,8 +240,8 @@ def window_estimate(case: Any, analysis: str) -> Estimate:
     epochs = duration / step + 2.0
     per_epoch = _BYTES_PER_EPOCH[analysis] + _BYTES_PER_STATION_EPOCH * stations
     field, value, advice = (
-        "window.step_s",
-        case.window.step_s,
+        step_field,
+        case.window.step_s if step_s is None else step_s,
         "use a larger step or a shorter window",
     )
     if (
