@@ -122,7 +122,8 @@ def test_an_epoch_beyond_the_time_scale_tables_names_the_field(tmp_path, capsys)
     path = _case(tmp_path, edit)
     for verb in ("summary", "passes", "lifetime"):
         line = _refused(capsys, verb, path)
-        assert line.startswith("epoch_utc = '9999-12-31T23:59:59Z': lies after 2199"), line
+        assert line.startswith("epoch_utc = '9999-12-31T23:59:59Z': lies after 2099"), line
+        assert "eraEpv00 is valid 1900-2100 AD" in line
 
 
 @pytest.mark.parametrize(
