@@ -209,3 +209,13 @@ def test_a_century_of_seasons_every_hundredth_of_a_day_is_refused_by_the_work_li
     assert status == 2 and err.count("\n") == 1, err
     assert "--step-days = 0.01: over 100 years would need about 2.63e+09 evaluations" in err, err
     assert "use a larger --step-days or fewer --years" in err
+
+
+def test_a_numerical_window_ten_years_after_the_epoch_names_the_start(tmp_path, capsys):
+    # Integrated from the epoch (2027-03-21) to the window's end: 3,654 days, ~5,700 s orbits.
+    data = _with(window={"start_utc": "2037-03-21T10:30:00Z", "duration_s": 86_400.0})
+    data["force_model"] = dict(STARTER_DATA.get("force_model", {}), propagator="numerical")
+    path = _write(tmp_path, data)
+    line = _refused(capsys, ["passes", str(path)], path)
+    assert "window.start_utc = '2037-03-21T10:30:00Z': over 3654 days from the epoch" in line, line
+    assert "start the window nearer the epoch" in line

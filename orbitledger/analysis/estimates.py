@@ -179,14 +179,20 @@ def _numerical(case: Any, duration_s: float, period_s: float) -> Estimate:
 
         start = max(0.0, utc_seconds_between(case.epoch_utc, case.window.start_utc))
     rhs = _RHS_PER_ORBIT * (start + duration_s) / period_s
+    if start > duration_s:  # most of the integration is the way from the epoch to the start
+        field, value = "window.start_utc", case.window.start_utc
+        advice = 'start the window nearer the epoch or use force_model.propagator "j2-mean"'
+    else:
+        field, value = "window.duration_s", duration_s
+        advice = 'use a shorter window or force_model.propagator "j2-mean"'
     return Estimate(
         "numerical",
         rhs * _BYTES_PER_RHS,
         rhs * RHS_WORK,
-        "window.duration_s",
-        duration_s,
+        field,
+        value,
         _days(start + duration_s) + " from the epoch" if start else _days(duration_s),
-        'use a shorter window or force_model.propagator "j2-mean"',
+        advice,
     )
 
 
