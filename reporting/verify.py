@@ -122,6 +122,8 @@ def _as_float(value: Any) -> float:
 
 
 def _check_inputs(report: VerifyReport, record: dict[str, Any]) -> list[tuple[str, Any]]:
+    from orbitledger.analysis import ALL_GROUPS
+    from orbitledger.analysis.estimates import check_case_groups
     from orbitledger.case import parse_case
 
     cases = []
@@ -152,6 +154,11 @@ def _check_inputs(report: VerifyReport, record: dict[str, Any]) -> list[tuple[st
             if same
             else f"orbitledger {__version__} writes this case differently (record built with {_built_with(record)})",
         )
+        try:  # the CLI's limits, before anything is recomputed (analysis.estimates)
+            check_case_groups(model, ALL_GROUPS)
+        except InputError as err:
+            report.add(f"input {name}: within the work limits", False, f"{err}; not recomputed")
+            continue
         cases.append((name, model))
     return cases
 

@@ -7,6 +7,7 @@ case means the same computation everywhere.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from typing import Any
 
@@ -47,7 +48,24 @@ def ballistic_coefficient_kg_m2(case: Any, *, field: str = "spacecraft") -> floa
         raise InputError(
             field, None, "this analysis needs the spacecraft's mass, drag area and drag coefficient"
         )
-    return float(_ballistic_coefficient(sc.mass_kg, sc.drag_area_m2, sc.drag_coefficient))
+    m, area, cd = float(sc.mass_kg), float(sc.drag_area_m2), float(sc.drag_coefficient)
+    product = cd * area
+    b = m / product if product > 0.0 else math.inf  # Python floats: no numpy warning
+    if not (math.isfinite(b) and b > 0.0):  # each factor is in range, their ratio is not
+        path, value = (
+            ("spacecraft.mass_kg", m)
+            if b == 0.0
+            else ("spacecraft.drag_coefficient", cd)
+            if cd < area
+            else ("spacecraft.drag_area_m2", area)
+        )
+        raise InputError(
+            path,
+            value,
+            f"gives a ballistic coefficient m / (Cd A) = {b:g} kg/m^2 (mass_kg {m:g}, "
+            f"drag_area_m2 {area:g}, drag_coefficient {cd:g}): drag cannot be computed",
+        )
+    return float(_ballistic_coefficient(m, area, cd))
 
 
 def case_force_model(case: Any) -> KernelForceModel:
@@ -86,6 +104,10 @@ def case_trajectory(
 
         return case_tle_trajectory(case, duration_s=duration_s, eop=case_earth_orientation(case))
     numerical = fm.propagator == "numerical"
+    if numerical:
+        from .estimates import check_estimate, numerical_estimate
+
+        check_estimate(numerical_estimate(case, duration_s))
     return trajectory(
         fm.propagator,
         case.elements(),

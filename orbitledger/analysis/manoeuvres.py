@@ -75,13 +75,9 @@ def budget_for_case(
     in for a missing one). Lines in flight order: fixed allowances, one line per burn of the
     plan, station-keeping (drag make-up x mission years), per-year allowances x mission years,
     disposal. Refused without the spacecraft's mass and Isp."""
-    from ..kernel.budget import (
-        BudgetItem,
-        delta_v_budget,
-        disposal_perigee_lowering,
-        drag_makeup_dv_km_s_per_year,
-    )
-    from ..kernel.forces import ballistic_coefficient_kg_m2
+    from .case_terms import case_terms, reentry_or_orbit_field, refuse_far_disposal
+    from .flux_scenario import case_density_profile
+    from .inputs import ballistic_coefficient_kg_m2
 
     sc = case.spacecraft
     if sc is None:
@@ -115,13 +111,41 @@ def budget_for_case(
         limit = limit if limit is not None else section.disposal.lifetime_limit_years
         reentry_km = section.disposal.reentry_altitude_km
     body = case.body_constants()
-    b = float(ballistic_coefficient_kg_m2(sc.mass_kg, sc.drag_area_m2, sc.drag_coefficient))
+    b = ballistic_coefficient_kg_m2(case)
 
     steps = burn_plan_for_case(case)
     operational = steps[-1].elements_after if steps else case.elements()
-    from .flux_scenario import case_density_profile, profile_from
-
     profile = case_density_profile(case, float(np.asarray(operational.i_deg)))
+    path, value = reentry_or_orbit_field(case, operational, reentry_km, after_burns=True)
+    terms = {  # kernel argument -> case field (analysis.case_terms)
+        "elements": (path, value, lambda err: f"the operational orbit: {err.reason}"),
+        "isp_s": "spacecraft.isp_s",
+        "propellant_mass_kg": "spacecraft.propellant_mass_kg",
+        "margin_percent": "budget.margin_percent",
+        "lifetime_limit_years": "budget.disposal.lifetime_limit_years",
+        "initial_mass_kg": (
+            "spacecraft.mass_kg",
+            sc.mass_kg,
+            lambda err: f"the budget's delta-v at Isp {sc.isp_s:g} s uses up the whole wet mass "
+            "(the rocket equation leaves none for a later line): lower the delta-v or raise isp_s",
+        ),
+    }  # fmt: skip
+    with case_terms(terms):
+        return _budget_lines(case, sc, section, steps, operational, years, margin, allowances,
+                             station_keeping, limit, reentry_km, body, profile, b,
+                             refuse_far_disposal)  # fmt: skip
+
+
+def _budget_lines(case, sc, section, steps, operational, years, margin, allowances,
+                  station_keeping, limit, reentry_km, body, profile, b, refuse_far_disposal):  # fmt: skip
+    from ..kernel.budget import (
+        BudgetItem,
+        delta_v_budget,
+        disposal_perigee_lowering,
+        drag_makeup_dv_km_s_per_year,
+    )
+    from .flux_scenario import profile_from
+
     activity = profile.scenario
     items: list[BudgetItem] = []
     for a in allowances:
@@ -160,6 +184,8 @@ def budget_for_case(
             )
     disposal = None
     if limit is not None:
+        apo_alt = float(operational.a_km) * (1.0 + float(operational.e)) - body.radius_km
+        refuse_far_disposal(case, apo_alt)
         disposal = disposal_perigee_lowering(
             operational, limit, b, reentry_altitude_km=reentry_km, body=body,
             density=profile_from(profile, years),  # disposal starts at the mission's end

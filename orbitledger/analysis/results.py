@@ -18,6 +18,7 @@ from typing import Any
 
 from ..kernel.errors import InputError
 from .earth_orientation import earth_orientation_results
+from .estimates import check_case_groups
 from .imaging import imaging_results
 from .orbit_groups import j2_results, orbit_results
 from .result import Result
@@ -57,6 +58,8 @@ def case_results(case: Any, groups: Iterable[str] | None = None) -> dict[str, Re
     for name in chosen:
         if name not in _GROUPS:
             raise InputError("groups", name, f"unknown result group; known: {', '.join(_GROUPS)}")
+    check_case_groups(case, chosen)  # every estimate before any work (analysis.estimates)
+    for name in chosen:
         for result in _GROUPS[name](case):
             out[result.name] = result
     return out

@@ -49,6 +49,9 @@ def case_seasons(
         raise InputError("--years", span, "must be more than 0 and at most 100 years")
     if not (math.isfinite(step_days) and 0.01 <= step_days <= 30.0):
         raise InputError("--step-days", step_days, "must be in [0.01, 30] days")
+    from .estimates import check_estimate, seasons_estimate
+
+    check_estimate(seasons_estimate(span * _YEAR_DAYS, step_days))  # before any work
     mean = dataclasses.replace(elements, a_km=mean_semi_major_axis_km(elements, body))
     return mission_seasons(
         mean,

@@ -10,6 +10,7 @@ from typing import Any
 
 import numpy as np
 
+from .estimates import check_window
 from .inputs import ballistic_coefficient_kg_m2, case_trajectory
 from .orbit_groups import scalar
 from .result import Result
@@ -27,6 +28,7 @@ def eclipse_results(case: Any, trajectory: Any = None) -> list[Result]:
         return []
     from ..kernel.eclipses import find_eclipses, node_local_times_h, whole_orbits
 
+    check_window(case, "eclipses")
     traj = case_trajectory(case) if trajectory is None else trajectory
     search = find_eclipses(traj, case.window.duration_s)
     orbits = whole_orbits(search, traj.period_s)
@@ -97,6 +99,7 @@ def contact_results(case: Any, trajectory: Any = None) -> list[Result]:
     from ..kernel.passes import ANY_STATION
     from .contacts import case_site_passes, volume_results
 
+    check_window(case, "passes")
     traj = case_trajectory(case) if trajectory is None else trajectory
     duration = case.window.duration_s
     sites = case_site_passes(case, traj)

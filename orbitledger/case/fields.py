@@ -133,11 +133,23 @@ UtcText = Annotated[str, AfterValidator(normalise_utc)]
 """A UTC instant, ISO 8601 (``2027-03-21T10:30:00Z``), normalised; leap seconds allowed."""
 
 
+_BIDI_CONTROLS = frozenset(
+    "\u061c\u200e\u200f\u202a\u202b\u202c\u202d\u202e\u2066\u2067\u2068\u2069"
+)
+
+
 def _non_blank(text: str) -> str:
     if not text.strip():
         raise ValueError("must not be empty")
+    bad = next((ch for ch in text if _BIDI_CONTROLS.intersection(ch) or not ch.isprintable()), None)
+    if bad is not None:  # a newline, an ANSI escape (ESC) or a bidi override (UAX #9)
+        raise ValueError(
+            f"must be one line of plain text: U+{ord(bad):04X} (a control or bidi character) "
+            "would change how the name is shown in a terminal or a record"
+        )
     return text
 
 
 Name = Annotated[str, Field(max_length=200), AfterValidator(_non_blank)]
-"""A name shown in records: non-blank text of at most 200 characters."""
+"""A name shown in records: one line of non-blank text of at most 200 characters, without
+control characters (newlines, ANSI escapes) or Unicode bidi controls."""

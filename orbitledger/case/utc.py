@@ -13,7 +13,11 @@ import warnings
 
 import erfa
 
-__all__ = ["normalise_utc", "utc_to_jd", "utc_seconds_between"]
+__all__ = ["LAST_UTC_YEAR", "normalise_utc", "utc_to_jd", "utc_seconds_between"]
+
+LAST_UTC_YEAR = 2099
+"""The last year of an epoch or window start: ERFA's Earth ephemeris (eraEpv00, behind the
+Sun's position) is valid 1900-2100 AD, and the leap-second table is extrapolated long before."""
 
 _ISO_UTC = re.compile(
     r"^(?P<y>\d{4})-(?P<mo>\d{2})-(?P<d>\d{2})[Tt ](?P<h>\d{2}):(?P<mi>\d{2})"
@@ -47,6 +51,11 @@ def _dtf2d(y: int, mo: int, d: int, h: int, mi: int, s: float) -> tuple[float, f
     """ERFA's calendar check (eraDtf2d); returns the two-part UTC quasi Julian date."""
     if y < 1960:  # as the kernel's parse_utc: UTC with leap seconds begins in 1960
         raise ValueError("lies before 1960, where UTC is not defined")
+    if y > LAST_UTC_YEAR:  # far beyond the leap-second table, which ERFA extrapolates
+        raise ValueError(
+            f"lies after {LAST_UTC_YEAR}: beyond the range of the time-scale and ephemeris "
+            "tables (ERFA eraEpv00 is valid 1900-2100 AD; eraDat extrapolates UTC - TAI)"
+        )
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", erfa.ErfaWarning)
         try:

@@ -46,6 +46,13 @@ def recorded_warnings() -> Iterator[list[str]]:
             lines.append(text)
 
 
+def check_window(case: Any, analysis: str) -> None:
+    """Refuse the analysis over a work limit before any work (``analysis.estimates``)."""
+    from ..analysis.estimates import check_window as check
+
+    check(case, analysis)
+
+
 def case_trajectory(case: Any, progress: Callable[[float], None] | None = None):
     """The kernel ``Trajectory`` of a case over its analysis window (``analysis.inputs``),
     refused for a central body other than the Earth (these analyses need the Earth's
@@ -93,6 +100,7 @@ def passes_data(case: Any, progress: Callable[[float], None] | None = None) -> d
     if not case.stations:
         raise InputError("stations", [], "the case has no stations: add one to compute passes")
     stations = case_stations(case)
+    check_window(case, "passes")  # estimates before work (analysis.estimates)
     with recorded_warnings() as notes:
         traj = case_trajectory(case, progress)
         sites = case_site_passes(case, traj)
@@ -142,6 +150,7 @@ def eclipses_data(
     from ..kernel.eclipses import beta_angle_deg, find_eclipses, node_local_times_h, whole_orbits
     from ..kernel.sun import sun_position_from_tt_km
 
+    check_window(case, "eclipses")  # estimates before work (analysis.estimates)
     with recorded_warnings() as notes:
         traj = case_trajectory(case, progress)
         duration = min(case.window.duration_s, traj.end_s)
@@ -197,6 +206,7 @@ def groundtrack_data(case: Any, progress: Callable[[float], None] | None = None)
     from ..kernel.sun import sun_position_from_tt_km
     from ..kernel.timescales import utc_iso
 
+    check_window(case, "groundtrack")  # estimates before work (analysis.estimates)
     with recorded_warnings() as notes:
         traj = case_trajectory(case, progress)
         t = _window_offsets(case, traj)
@@ -224,6 +234,7 @@ def ephemeris_data(case: Any, progress: Callable[[float], None] | None = None) -
     """GCRF and ITRF position and velocity at the window's steps."""
     from ..kernel.timescales import utc_iso
 
+    check_window(case, "ephemeris")  # estimates before work (analysis.estimates)
     with recorded_warnings() as notes:
         traj = case_trajectory(case, progress)
         t = _window_offsets(case, traj)

@@ -81,9 +81,10 @@ def lifetime_data(
     progress: Callable[[float], None] | None = None,
 ) -> dict[str, Any]:
     """The lifetime of a validated ``Case`` as plain data (JSON-ready), assumptions included."""
+    from ..analysis.case_terms import case_terms, reentry_or_orbit_field
     from ..analysis.flux_scenario import scenario_profiles
+    from ..analysis.inputs import ballistic_coefficient_kg_m2
     from ..kernel.errors import InputError
-    from ..kernel.forces import ballistic_coefficient_kg_m2
     from ..kernel.lifetime import lifetime_years
     from ..kernel.timescales import utc_iso
 
@@ -97,31 +98,31 @@ def lifetime_data(
             InputError.MISSING,  # type: ignore[attr-defined]
             "lifetime needs the spacecraft section (mass_kg, drag_area_m2, drag_coefficient)",
         )
-    b = float(
-        ballistic_coefficient_kg_m2(craft.mass_kg, craft.drag_area_m2, craft.drag_coefficient)
-    )
+    b = ballistic_coefficient_kg_m2(case)
     disposal = case.budget.disposal if case.budget is not None else None
     reentry_km = disposal.reentry_altitude_km if disposal is not None else _DEFAULT_REENTRY_KM
     elements = case.elements()
     profiles = scenario_profiles(case)
-    result = lifetime_years(
-        elements,
-        ballistic_coefficient_kg_m2=b,
-        reentry_altitude_km=reentry_km,
-        method=method,
-        max_years=max_years,
-        body=body,
-        progress=progress,
-        density=profiles[0][1],
-    )
-    scenarios = [_scenario_row("case", result)]
-    if method == "orbit-averaged":
-        for name, profile in profiles[1:]:
-            other = lifetime_years(
-                elements, ballistic_coefficient_kg_m2=b, reentry_altitude_km=reentry_km,
-                max_years=result.max_years, body=body, density=profile,
-            )  # fmt: skip
-            scenarios.append(_scenario_row(name, other))
+    path, value = reentry_or_orbit_field(case, elements, reentry_km, after_burns=False)
+    with case_terms({"elements": (path, value, lambda err: err.reason)}):  # the case's words
+        result = lifetime_years(
+            elements,
+            ballistic_coefficient_kg_m2=b,
+            reentry_altitude_km=reentry_km,
+            method=method,
+            max_years=max_years,
+            body=body,
+            progress=progress,
+            density=profiles[0][1],
+        )
+        scenarios = [_scenario_row("case", result)]
+        if method == "orbit-averaged":
+            for name, profile in profiles[1:]:
+                other = lifetime_years(
+                    elements, ballistic_coefficient_kg_m2=b, reentry_altitude_km=reentry_km,
+                    max_years=result.max_years, body=body, density=profile,
+                )  # fmt: skip
+                scenarios.append(_scenario_row(name, other))
     jd1, jd2 = case.epoch_jd_utc()
     data: dict[str, Any] = {
         "title": case.meta.title,

@@ -64,14 +64,19 @@ def main(argv: Sequence[str] | None = None) -> int:
         parser.print_help()
         return 2
     from ..kernel.errors import InputError  # after parsing: --version and --help import no kernel
+    from .one_line import named_file, numeric_warnings, one_line
 
     try:
-        return int(args.run(args) or 0)
-    except (InputError, UsageError) as err:
-        print(f"orbitledger {args.verb}: {err}", file=sys.stderr)
+        with numeric_warnings(args.verb):
+            return int(args.run(args) or 0)
+    except InputError as err:
+        print(f"orbitledger {args.verb}: {one_line(str(named_file(err, args)))}", file=sys.stderr)
+        return 2
+    except UsageError as err:
+        print(f"orbitledger {args.verb}: {one_line(str(err))}", file=sys.stderr)
         return 2
     except CheckFailed as err:
-        print(f"orbitledger {args.verb}: {err}", file=sys.stderr)
+        print(f"orbitledger {args.verb}: {one_line(str(err))}", file=sys.stderr)
         return 1
     except KeyboardInterrupt:
         print(f"orbitledger {args.verb}: interrupted", file=sys.stderr)

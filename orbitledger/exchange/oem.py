@@ -221,12 +221,15 @@ def oem_text(
     GCRF, UTC. Times to the microsecond, numbers by ``repr``. Interpolation: Hermite of
     degree 5 (positions and velocities of three neighbouring points)."""
     from ..analysis import case_trajectory
+    from ..analysis.estimates import check_estimate, window_estimate
 
-    traj = case_trajectory(case)
-    duration = min(case.window.duration_s, traj.end_s)
     step = case.window.step_s if step_s is None else float(step_s)
     if not step > 0.0:
         raise InputError("step_s", step_s, "must be a positive number of seconds")
+    field = "window.step_s" if step_s is None else "step_s"
+    check_estimate(window_estimate(case, "ephemeris", step_s=step, step_field=field))
+    traj = case_trajectory(case)
+    duration = min(case.window.duration_s, traj.end_s)
     t = np.arange(0.0, duration, step)
     t = np.append(t, duration) if t[-1] < duration else t
     r, v = traj.gcrf(t)

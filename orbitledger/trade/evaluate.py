@@ -249,7 +249,11 @@ def evaluate_cases(
     else:
         per_case = vector_groups + per_case
     errors: list[str] | None = None
-    if per_case:
+    if per_case:  # cases one by one: estimated before any work (analysis.estimates)
+        from ..analysis.estimates import check_cases
+
+        field = {"sweep": "vary", "monte-carlo": "samples"}.get(kind, "inputs")
+        check_cases(case, per_case, rows, field=field)
         errors = []
         case_columns = tuple(c for c in selection.columns if c not in out)
         found = {c: [] for c in case_columns}

@@ -76,10 +76,26 @@ def grid(start: float, stop: float, step: float, *, field: str = "grid") -> np.n
             f"has the wrong sign: it must point from start {lo:g} towards stop {hi:g}",
         )
     count = math.floor((hi - lo) / dx + STOP_TOLERANCE) + 1
+    _check_grid_size(field, step, count)
     values = lo + dx * np.arange(count, dtype=float)
     if abs(values[-1] - hi) <= STOP_TOLERANCE * abs(dx):
         values[-1] = hi
     return values
+
+
+def _check_grid_size(field: str, step: float, count: int) -> None:
+    """Refuse a grid whose values alone would be over the memory limit (analysis.estimates)."""
+    from ..analysis.estimates import MEMORY_LIMIT_ENV, memory_limit_bytes
+    from ..limits import size_text
+
+    need, limit = 8.0 * count, memory_limit_bytes()
+    if need > limit:
+        raise InputError(
+            f"{field} step",
+            step,
+            f"makes {count:,} values, {size_text(need)} for the grid alone (limit "
+            f"{size_text(limit)}, {MEMORY_LIMIT_ENV}); use a coarser step",
+        )
 
 
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
