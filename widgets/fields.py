@@ -35,7 +35,7 @@ _UNIT_SUFFIXES: tuple[tuple[str, str], ...] = (
     ("_m_s", "m/s"),
     ("_arcsec", "arcsec"),
     ("_percent", "%"),
-    ("_years", "years"),
+    ("_years", "yr"),  # as the results write it (lifetime, yr)
     ("_deg", "deg"),
     ("_utc", "UTC"),
     ("_km", "km"),
@@ -81,7 +81,7 @@ _LABELS = {
 }
 
 LABEL_WIDTH = "10.5em"
-INPUT_WIDTH = "15em"  # a full double, -4.610733100000001e-16, in a monospace font
+INPUT_WIDTH = "16em"  # a full double, -4.610733100000001e-16, in a monospace font
 
 
 def unit_for(name: str) -> str:

@@ -149,7 +149,7 @@ class EditorForm(w.VBox):
         # right, so an edit and its effect are side by side; they wrap on a narrow page.
         form = w.VBox(
             [self._sections[key] for key, _title, _paths in SECTIONS],
-            layout=w.Layout(flex="1 1 32em", min_width="31em"),  # label, a full double, unit
+            layout=w.Layout(flex="1 1 33em", min_width="32em"),  # label, a full double, unit
         )
         self.results_panel.widget.children = [
             self.results_panel.title,
