@@ -10,7 +10,6 @@ name, first letter capitalised (``Orbitrecord``); docs/records.md says which ite
 from __future__ import annotations
 
 from nbconvert.exporters import get_export_names, get_exporter
-
 from orbitledger.reporting.exporter import OrbitRecordExporter, OrbitRecordPDFExporter
 
 
