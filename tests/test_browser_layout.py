@@ -36,8 +36,12 @@ def test_cartesian_values_units_and_table_columns_are_readable(tmp_path: Path) -
         orbit = editor.locator(".ol-section").first
         inputs = orbit.locator(".ol-vector input")
         assert inputs.count() == 6
+        widths = [inputs.nth(k).evaluate("e => e.clientWidth") for k in range(6)]
+        assert max(widths) - min(widths) <= 1, widths  # no input squeezed by its error line
         for k in range(6):
             assert not inputs.nth(k).evaluate(_CLIPPED), inputs.nth(k).input_value()
+        mass = editor.get_by_label("Mass", exact=True)  # a plain field is as wide
+        assert abs(mass.evaluate("e => e.clientWidth") - widths[0]) <= 1
         units = orbit.locator(".ol-vector .ol-unit")
         assert [units.nth(k).inner_text() for k in range(6)] == ["km"] * 3 + ["km/s"] * 3
         for k in range(6):

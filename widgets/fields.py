@@ -210,7 +210,10 @@ def _text_input(label: str, path: str, width: str = INPUT_WIDTH, described: bool
         continuous_update=True,
         tooltip=path,
         style={"description_width": LABEL_WIDTH if described else "0"},
-        layout=w.Layout(width=f"calc({LABEL_WIDTH} + {width})" if described else width),
+        layout=w.Layout(
+            width=f"calc({LABEL_WIDTH} + {width})" if described else width,
+            flex="0 0 auto",  # the error line beside it takes the room, never the input's
+        ),
     )
     return text
 
@@ -284,7 +287,7 @@ class ChoiceField(Field):
             options=list(options),
             description=self.label,
             style={"description_width": LABEL_WIDTH},
-            layout=w.Layout(width=f"calc({LABEL_WIDTH} + {INPUT_WIDTH})"),
+            layout=w.Layout(width=f"calc({LABEL_WIDTH} + {INPUT_WIDTH})", flex="0 0 auto"),
         )
         self.widget = self._row(self.input)
         self.set_value(value)
