@@ -139,7 +139,7 @@ def test_apply_saves_and_updates_the_results(editor: CaseEditor, case_path: Path
 def test_a_refused_apply_changes_nothing(editor: CaseEditor, case_path: Path) -> None:
     before_bytes = case_path.read_bytes()
     before_case, before_summary = editor.case, dict(editor.summary)
-    before_fields = {p: f.widget.children[0].value for p, f in editor.fields.items()}
+    before_fields = {p: [t.value for t in f.input_widgets] for p, f in editor.fields.items()}
     before_panel = editor.results_panel.table.value
     with pytest.raises(CaseError) as refused:
         editor.apply({"orbit.e": -0.1})
@@ -147,7 +147,7 @@ def test_a_refused_apply_changes_nothing(editor: CaseEditor, case_path: Path) ->
     assert editor.case is before_case
     assert editor.summary == before_summary
     assert case_path.read_bytes() == before_bytes
-    assert {p: f.widget.children[0].value for p, f in editor.fields.items()} == before_fields
+    assert {p: [t.value for t in f.input_widgets] for p, f in editor.fields.items()} == before_fields
     assert editor.results_panel.table.value == before_panel
     assert not editor._history.can_undo
 

@@ -35,7 +35,7 @@ _UNIT_SUFFIXES: tuple[tuple[str, str], ...] = (
     ("_m_s", "m/s"),
     ("_arcsec", "arcsec"),
     ("_percent", "%"),
-    ("_years", "years"),
+    ("_years", "yr"),  # as the results write it (lifetime, yr)
     ("_deg", "deg"),
     ("_utc", "UTC"),
     ("_km", "km"),
@@ -81,7 +81,7 @@ _LABELS = {
 }
 
 LABEL_WIDTH = "10.5em"
-INPUT_WIDTH = "9.5em"
+INPUT_WIDTH = "16em"  # a full double, -4.610733100000001e-16, in a monospace font
 
 
 def unit_for(name: str) -> str:
@@ -150,9 +150,15 @@ class Field:
 
     def on_commit(self, fn: Callable[[Field], None]) -> None:
         """Register ``fn(field)`` for Enter in one of the field's text inputs."""
-        for widget in self.widget.children:
+        for widget in self.input_widgets:
             if isinstance(widget, w.Text):
                 on_enter(widget, lambda: fn(self))
+
+    @property
+    def input_widgets(self) -> list[w.Widget]:
+        """The widgets the user types or chooses in (one, or three for a vector)."""
+        inputs = getattr(self, "inputs", None)
+        return list(inputs) if inputs is not None else [self.input]
 
     @property
     def value(self) -> Any:
@@ -204,7 +210,10 @@ def _text_input(label: str, path: str, width: str = INPUT_WIDTH, described: bool
         continuous_update=True,
         tooltip=path,
         style={"description_width": LABEL_WIDTH if described else "0"},
-        layout=w.Layout(width=f"calc({LABEL_WIDTH} + {width})" if described else width),
+        layout=w.Layout(
+            width=f"calc({LABEL_WIDTH} + {width})" if described else width,
+            flex="0 0 auto",  # the error line beside it takes the room, never the input's
+        ),
     )
     return text
 
@@ -255,7 +264,7 @@ class TextField(Field):
     def __init__(self, path: str, value: Any, *, optional: bool = False, **kw: Any) -> None:
         super().__init__(path, **kw)
         self.optional = optional
-        self.input = _text_input(self.label, path, width="14em")
+        self.input = _text_input(self.label, path, width="16em")
         self.widget = self._row(self.input)
         self.set_value(value)
 
@@ -278,7 +287,7 @@ class ChoiceField(Field):
             options=list(options),
             description=self.label,
             style={"description_width": LABEL_WIDTH},
-            layout=w.Layout(width=f"calc({LABEL_WIDTH} + {INPUT_WIDTH})"),
+            layout=w.Layout(width=f"calc({LABEL_WIDTH} + {INPUT_WIDTH})", flex="0 0 auto"),
         )
         self.widget = self._row(self.input)
         self.set_value(value)
@@ -314,25 +323,35 @@ class BoolField(Field):
 
 
 class VectorField(Field):
-    """A 3-vector (``r_km``, ``v_km_s``, ``dv_rtn_km_s``): three numbers on one line."""
+    """A 3-vector (``r_km``, ``v_km_s``, ``dv_rtn_km_s``): one component per line, each input
+    wide enough for a full double (``-4.610733100000001e-16``) with the unit beside it."""
 
     def __init__(
         self, path: str, value: Any, *, axes: Sequence[str] = ("x", "y", "z"), **kw: Any
     ) -> None:
         super().__init__(path, **kw)
         self.axes = tuple(axes)
-        first = _text_input(f"{self.label} {self.axes[0]}", path, width="7em")
-        rest = [
-            w.Text(
-                continuous_update=True,
-                tooltip=f"{path} {axis}",
-                placeholder=axis,
-                layout=w.Layout(width="7em"),
-            )
-            for axis in self.axes[1:]
+        self.inputs = [
+            _text_input(f"{self.label} {axis}" if n == 0 else axis, f"{path} {axis}")
+            for n, axis in enumerate(self.axes)
         ]
-        self.inputs = [first, *rest]
-        self.widget = self._row(*self.inputs)
+        units = [self.unit_label] + [
+            w.HTML(self.unit, layout=w.Layout(width="4.5em", min_width="4.5em"))
+            for _axis in self.axes[1:]
+        ]
+        for unit in units[1:]:
+            unit.add_class("ol-unit")
+        # One line per component; the error line beside the first.
+        lines = [w.HBox([self.inputs[0], units[0], self.error], layout=w.Layout(width="100%"))]
+        lines += [
+            w.HBox([text, unit]) for text, unit in zip(self.inputs[1:], units[1:], strict=True)
+        ]
+        for line in lines:
+            line.add_class("ol-field")
+        self.widget = w.VBox(lines, layout=w.Layout(width="100%"))
+        self.widget.add_class("ol-vector")
+        for text in self.inputs:
+            text.observe(self._changed, names="value")
         self.set_value(value)
 
     def _read(self) -> list[float]:

@@ -19,6 +19,7 @@ from orbitledger.case import CaseError
 
 from . import pipeline
 from .background import BackgroundJob
+from .durations import DurationField, is_duration
 from .fields import BoolField, ChoiceField, Field, NumberField, TextField, VectorField
 from .formview import view_case
 from .inputkeys import FIGURE_NEEDS, figure_key
@@ -148,7 +149,7 @@ class EditorForm(w.VBox):
         # right, so an edit and its effect are side by side; they wrap on a narrow page.
         form = w.VBox(
             [self._sections[key] for key, _title, _paths in SECTIONS],
-            layout=w.Layout(flex="1 1 27em", min_width="26em"),
+            layout=w.Layout(flex="1 1 33em", min_width="32em"),  # label, a full double, unit
         )
         self.results_panel.widget.children = [
             self.results_panel.title,
@@ -266,10 +267,18 @@ class EditorForm(w.VBox):
             field = VectorField(spec.path, spec.value)
         elif spec.kind == "text":
             field = TextField(spec.path, spec.value, optional=spec.optional)
+        elif is_duration(spec.path):  # typed in s, min, h or days; the unit chosen is kept
+            if not hasattr(self, "_duration_units"):
+                self._duration_units: dict[str, str] = {}
+            units = self._duration_units
+            field = DurationField(spec.path, spec.value, unit=units.get(spec.path, "s"))
+            field.unit_choice.observe(
+                lambda c, p=spec.path: units.__setitem__(p, c["new"]), names="value"
+            )
         else:
             field = NumberField(spec.path, spec.value, optional=spec.optional)
         if spec.help:
-            for widget in field.widget.children[:-2]:
+            for widget in field.input_widgets:
                 widget.tooltip = f"{spec.path}: {spec.help}"
         if spec.path == "window.start_utc":
             field.input.placeholder = "the case epoch"

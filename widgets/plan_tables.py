@@ -21,10 +21,10 @@ class AllowanceTable(ListTable):
     title = "Budget allowances"
     noun = "allowance"
     columns = (
-        ("name", "name", "16em"),
-        ("dv_km_s", "delta-v (km/s)", "8.5em"),
-        ("per_year", "every year", "7em"),
-        ("margin", "with margin", "7em"),
+        ("name", "name", "21em"),
+        ("dv_km_s", "delta-v (km/s)", "9em"),
+        ("per_year", "every year", "6em"),
+        ("margin", "with margin", "6em"),
     )
 
     def _row_widgets(self, index: int, entry: dict[str, Any]):
@@ -32,9 +32,9 @@ class AllowanceTable(ListTable):
             key: text_cell("", width, f"{self.path}.{index}.{key}")
             for key, _text, width in self.columns[:2]
         }
-        for key, text, width in self.columns[2:]:
-            cells[key] = w.Checkbox(description=text, indent=False, layout=w.Layout(width=width))
-            cells[key].tooltip = f"{self.path}.{index}.{key}"
+        for key, text, width in self.columns[2:]:  # the header names them: no label beside
+            cells[key] = w.Checkbox(indent=False, layout=w.Layout(width=width, min_width=width))
+            cells[key].tooltip = f"{self.path}.{index}.{key} ({text})"
 
         def write(entry: dict[str, Any]) -> None:
             cells["name"].value = str(entry.get("name", ""))
@@ -99,7 +99,7 @@ class BurnTable(ListTable):
         ("name", "name", "14em"),
         ("at", "when", "11em"),
         ("epoch_utc", "epoch (UTC)", "13em"),
-        ("what", "delta-v R, T, N (km/s) or transfer (JSON)", "22em"),
+        ("what", "delta-v R, T, N (km/s) or transfer (JSON)", "26em"),
     )
 
     def column_of(self, path: str | None) -> str | None:
@@ -110,11 +110,13 @@ class BurnTable(ListTable):
 
     def _row_widgets(self, index: int, entry: dict[str, Any]):
         name = text_cell("", "14em", f"burns.{index}.name")
-        when = w.Dropdown(options=list(_AT_CHOICES), layout=w.Layout(width="11em"))
+        when = w.Dropdown(
+            options=list(_AT_CHOICES), layout=w.Layout(width="11em", min_width="11em")
+        )
         when.tooltip = f"burns.{index}.at"
         epoch = text_cell("", "13em", f"burns.{index}.at.epoch_utc")
         when.observe(lambda c: setattr(epoch, "disabled", c["new"] != "epoch"), names="value")
-        what = text_cell("", "22em", f"burns.{index}: delta-v R, T, N (km/s) or transfer (JSON)")
+        what = text_cell("", "26em", f"burns.{index}: delta-v R, T, N (km/s) or transfer (JSON)")
 
         def write(entry: dict[str, Any]) -> None:
             at = entry.get("at") or {}

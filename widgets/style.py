@@ -74,6 +74,14 @@ CSS = """
   white-space: normal; line-height: 1.25; }
 .ol-invalid input { border-color: var(--jp-error-color1, #d32f2f) !important;
   background: color-mix(in srgb, var(--jp-error-color1, #d32f2f) 8%, transparent) !important; }
+.ol-invalid-cell input { border-color: var(--jp-error-color1, #d32f2f) !important;
+  background: color-mix(in srgb, var(--jp-error-color1, #d32f2f) 8%, transparent) !important; }
+.ol-table-header { align-items: flex-end; }
+.ol-table-header .widget-html { height: auto; align-self: flex-end; }
+.ol-table-header .widget-html-content { height: auto; line-height: 1.25; white-space: normal;
+  color: var(--ol-muted); font-size: var(--jp-ui-font-size0, 11px); padding-bottom: 1px; }
+.ol-unit-choice select { font-family: var(--jp-code-font-family, monospace);
+  font-size: var(--jp-ui-font-size0, 11px); padding-left: 4px; }
 .ol-warn { color: var(--jp-warn-color0, #b35c00); font-size: var(--jp-ui-font-size1, 13px);
   white-space: normal; }
 .ol-note { color: var(--ol-muted); font-size: var(--jp-ui-font-size0, 11px); white-space: normal; }
@@ -93,7 +101,7 @@ CSS = """
 .ol-results tr.ol-group td, .ol-trade tr.ol-group td { color: var(--ol-accent); font-weight: 600; padding-top: 5px;
   border-bottom: none; font-size: var(--jp-ui-font-size0, 11px); text-transform: uppercase; }
 .ol-results td.ol-u, .ol-trade td.ol-u { color: var(--ol-muted); font-size: var(--jp-ui-font-size0, 11px); }
-.ol-trade td.ol-best { background: var(--ol-accent-soft); font-weight: 700; }
+.ol-trade td.ol-best { background: var(--ol-accent-soft); font-weight: 700; white-space: nowrap; }
 .ol-results td.ol-num, .ol-trade td.ol-num, .ol-results td.ol-u, .ol-trade td.ol-u {
   white-space: nowrap; }
 .ol-trade td.ol-best::after { content: " \\2605"; color: var(--ol-accent); }

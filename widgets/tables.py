@@ -28,14 +28,17 @@ Schedule = Callable[[str, Callable[[], None]], None]
 
 def text_cell(value: str, width: str, tooltip: str) -> w.Text:
     return w.Text(
-        value=value, continuous_update=True, tooltip=tooltip, layout=w.Layout(width=width)
+        value=value,
+        continuous_update=True,
+        tooltip=tooltip,
+        layout=w.Layout(width=width, min_width=width),  # never narrower than its header
     )
 
 
 def _header(columns: Sequence[tuple[str, str, str]]) -> w.HBox:
     # The same widths as the cells below, with the cells' own margin, so the columns line up.
     cells = [
-        w.HTML(f"<b>{_escape(text)}</b>", layout=w.Layout(width=width))
+        w.HTML(f"<b>{_escape(text)}</b>", layout=w.Layout(width=width, min_width=width))
         for _key, text, width in columns
     ]
     box = w.HBox(cells)
@@ -97,7 +100,7 @@ class ListTable:
             remove = w.Button(
                 description="Remove", tooltip=f"Remove {self.noun} {index + 1}", icon="trash"
             )
-            remove.layout = w.Layout(width="7.5em")
+            remove.layout = w.Layout(width="7.5em", min_width="7.5em")
             remove.on_click(lambda _b, i=index: self._remove(i))
             error = w.HTML("", layout=w.Layout(flex="1 1 10em"))
             error.add_class("ol-error")
