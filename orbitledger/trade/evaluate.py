@@ -115,7 +115,7 @@ def _plain(value: float, integer: bool) -> float | int:
 
 def case_changes(base: Any, row: Mapping[str, float]) -> dict[str, float | int]:
     """``{path: value}`` for ``Case.with_changes``: integer fields of the case get integers."""
-    from .sweep import check_input_path
+    from ..case.changes import check_input_path
 
     return {p: _plain(float(v), isinstance(check_input_path(base, p), int)) for p, v in row.items()}
 
@@ -123,7 +123,7 @@ def case_changes(base: Any, row: Mapping[str, float]) -> dict[str, float | int]:
 def check_extremes(base: Any, inputs: Mapping[str, np.ndarray]) -> None:
     """Validate the cases at the extremes of the inputs through the case model (CaseError
     names the path of a refused value)."""
-    from .sweep import check_input_path
+    from ..case.changes import check_input_path
 
     integers = {p: isinstance(check_input_path(base, p), int) for p in inputs}
     bounds = {p: sorted({float(np.min(v)), float(np.max(v))}) for p, v in inputs.items()}
@@ -298,7 +298,7 @@ def _chunks(
     selection: MetricSelection,
     size: int,
 ) -> list[CaseChunk]:
-    from .sweep import check_input_path
+    from ..case.changes import check_input_path
 
     paths = tuple(columns)
     integer = tuple(isinstance(check_input_path(base, p), int) for p in paths)
