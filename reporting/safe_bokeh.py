@@ -82,7 +82,7 @@ def _models(node: Any):
 
 
 def _clean(text: str) -> str:
-    from .exporter import sanitize_html
+    from .filters import sanitize_html
 
     return str(sanitize_html(text))
 

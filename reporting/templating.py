@@ -13,8 +13,9 @@ from typing import Any
 
 from markupsafe import Markup
 
-from .build import FIGURE_MIME
+from .filters import format_value, json_for_script
 from .record import canonical_dumps
+from .run import FIGURE_MIME
 
 __all__ = [
     "constants_table",
@@ -53,18 +54,6 @@ def unit_of(path: str) -> str:
         if leaf.endswith(suffix):
             return unit
     return ""
-
-
-def format_value(value: Any) -> str:
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, float):
-        return f"{value:.10g}"
-    if value is None:
-        return "null"
-    if isinstance(value, list | dict):
-        return json.dumps(value, ensure_ascii=False)
-    return str(value)
 
 
 _SECTION_ORDER = (
@@ -263,7 +252,6 @@ def _bokeh_js(nb: Any) -> Markup:
 def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
     """The template's view of ``record`` (and of the prepared notebook ``nb``)."""
     from .display import display_result
-    from .exporter import json_for_script
     from .record_page import POLICY, SCRIPT_SOURCES
     from .findings import findings_view
 

@@ -13,9 +13,8 @@ import hashlib
 import os
 import tempfile
 from pathlib import Path
-from typing import Any
+from typing import Any, Protocol
 
-from .. import study
 from ..limits import MAX_CASE_FILE_BYTES, read_input_bytes
 from .errors import MISSING, CaseError, CaseFileChanged, CaseFileNotFound
 from .model import Case, case_from_data
@@ -28,7 +27,14 @@ __all__ = [
     "open_case",
     "write_new_case",
     "atomic_write_text",
+    "CaseRegistry",
 ]
+
+
+class CaseRegistry(Protocol):
+    """Where a study notes the case files it loads and saves (``orbitledger.study`` is one)."""
+
+    def note_case(self, path: str | os.PathLike, fingerprint: str) -> None: ...
 
 
 def parse_case(text: str | bytes, file: str | os.PathLike | None = None) -> Case:
@@ -135,18 +141,23 @@ class CaseFile:
     """A case bound to its file: ``.case`` is the current Case, ``save`` writes it back safely.
 
     Attribute access falls through to the case (``case_file.orbit`` is ``case_file.case.orbit``).
-    Every load and save is noted in :mod:`orbitledger.study`, so a record lists the case files
-    a study used, each with the fingerprint it last had.
+    ``registry`` (a :class:`CaseRegistry`, given per case file) is told of every load and save:
+    ``orbitledger.open_case`` passes the study registry :mod:`orbitledger.study`, so a record
+    lists the case files a study used, each with the fingerprint it last had. Without one
+    nothing is noted anywhere: the case layer keeps no global state.
     """
 
-    def __init__(self, path: str | os.PathLike) -> None:
+    def __init__(self, path: str | os.PathLike, *, registry: CaseRegistry | None = None) -> None:
         self._path = Path(path)
+        self._registry = registry
         self._case: Case
         self._disk_sha256: str
         self.reload()
 
     @classmethod
-    def open(cls, path: str | os.PathLike, *, create: bool = False) -> CaseFile:
+    def open(
+        cls, path: str | os.PathLike, *, create: bool = False, registry: CaseRegistry | None = None
+    ) -> CaseFile:
         """Open the case file at ``path``.
 
         A missing file is refused (``CaseFileNotFound`` naming the path and the closest
@@ -165,7 +176,7 @@ class CaseFile:
             except CaseError:
                 if not path.exists():  # not lost a race to another writer: a real failure
                     raise
-        return cls(path)
+        return cls(path, registry=registry)
 
     @property
     def path(self) -> Path:
@@ -185,7 +196,8 @@ class CaseFile:
         data = _read_bytes(self._path)
         self._case = parse_case(data, self._path)
         self._disk_sha256 = hashlib.sha256(data).hexdigest()
-        study.note_case(self._path, self._case.fingerprint)
+        if self._registry is not None:
+            self._registry.note_case(self._path, self._case.fingerprint)
         return self._case
 
     def changed_on_disk(self) -> bool:
@@ -222,7 +234,8 @@ class CaseFile:
             ) from None
         self._case = case
         self._disk_sha256 = hashlib.sha256(data).hexdigest()
-        study.note_case(self._path, case.fingerprint)
+        if self._registry is not None:
+            self._registry.note_case(self._path, case.fingerprint)
         return case
 
     def update(self, changes: dict[str, Any], *, force: bool = False) -> Case:
@@ -239,10 +252,13 @@ class CaseFile:
         return f"{type(self).__name__}({str(self._path)!r}, fingerprint={self.fingerprint[:12]}...)"
 
 
-def open_case(path: str | os.PathLike, *, create: bool = False) -> CaseFile:
+def open_case(
+    path: str | os.PathLike, *, create: bool = False, registry: CaseRegistry | None = None
+) -> CaseFile:
     """Load the case file at ``path`` as a CaseFile; ``create=True`` writes the starter case
-    there first if it is missing (else a missing file raises ``CaseFileNotFound``)."""
-    return CaseFile.open(path, create=create)
+    there first if it is missing (else a missing file raises ``CaseFileNotFound``).
+    ``registry`` is noted of its loads and saves (``orbitledger.open_case`` passes the study's)."""
+    return CaseFile.open(path, create=create, registry=registry)
 
 
 def missing_case_reason(path: Path) -> str:

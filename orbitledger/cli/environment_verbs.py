@@ -147,7 +147,7 @@ def _hms(text: str) -> str:
 
 
 def run_passes(args: argparse.Namespace) -> int:
-    from .environment_data import passes_data
+    from ..analysis.environment_data import passes_data
 
     data = _compute(args, passes_data)
     if args.json:
@@ -225,7 +225,7 @@ def _volume_lines(data: dict[str, Any]) -> list[str]:
 
 
 def run_eclipses(args: argparse.Namespace) -> int:
-    from .environment_data import eclipses_data
+    from ..analysis.environment_data import eclipses_data
 
     data = _compute(args, eclipses_data, model="cylindrical" if args.cylindrical else "conical")
     if args.json:
@@ -306,7 +306,7 @@ def _print_columns(data: dict[str, Any], as_csv: bool, digits: dict[str, int]) -
 
 
 def run_groundtrack(args: argparse.Namespace) -> int:
-    from .environment_data import groundtrack_data
+    from ..analysis.environment_data import groundtrack_data
 
     data = _compute(args, groundtrack_data)
     _print_columns(data, args.csv, {"offset_s": 3, "lat_deg": 5, "lon_deg": 5, "height_km": 3})
@@ -314,7 +314,7 @@ def run_groundtrack(args: argparse.Namespace) -> int:
 
 
 def run_ephemeris(args: argparse.Namespace) -> int:
-    from .environment_data import ephemeris_data
+    from ..analysis.environment_data import ephemeris_data
 
     data = _compute(args, ephemeris_data)
     _print_columns(data, args.csv, {"offset_s": 3})
