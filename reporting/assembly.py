@@ -12,12 +12,12 @@ import copy
 import json
 import re
 import warnings
-from datetime import datetime, timezone
 from pathlib import Path
 from typing import Any
 
 from . import record as rec
 from .figure_items import item_fingerprint
+from .ledger_parts import utc_now
 from .run import FIGURE_MIME, BuildError
 from .safe_bokeh import UnsafeFigure, safe_item
 
@@ -112,7 +112,7 @@ def assemble_record(
     from .findings import record_findings
 
     nb_path = Path(nb_path).resolve()
-    built_utc = datetime.now(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
+    built_utc = utc_now()
     inputs, cases = _cases(manifest, nb_path.parent)
     datas = [json.loads(c["canonical"]) for c in inputs]
     metas = [d.get("meta", {}) for d in datas]

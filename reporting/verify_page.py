@@ -20,11 +20,10 @@
 
 from __future__ import annotations
 
-import hashlib
 import json
 from typing import Any
 
-from .record_page import markup_sha256, policy_with, shown_fingerprints
+from .record_page import _sha, markup_sha256, policy_with, shown_fingerprints
 from .record_text import Page, read_page, section_text
 
 __all__ = ["check_page", "first_text_difference", "table_values"]
@@ -65,14 +64,10 @@ def first_text_difference(shown: list[dict[str, Any]], stated: list[dict[str, An
     return ""
 
 
-def _sha(text: str) -> str:
-    return hashlib.sha256(text.encode("utf-8")).hexdigest()
-
-
 def _required(record: dict[str, Any]) -> list[tuple[str, str, str]]:
     """(section id, what, text) that the record's own data puts on the page."""
     from .display import display_result
-    from .exporter import safe_markdown
+    from .filters import safe_markdown
 
     rev = record.get("revision")
     out = [
@@ -188,7 +183,7 @@ def table_values(record: dict[str, Any]) -> dict[str, str]:
     """What the tables must show for each value of the record (the templates' formatting)."""
     from .diff import flatten
     from .display import display_result
-    from .templating import format_value
+    from .filters import format_value
 
     def text(value: Any) -> str:
         return "—" if value is None else format_value(value)

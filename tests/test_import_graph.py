@@ -184,7 +184,6 @@ def test_reporting_imports_no_widgets():
     assert {line.split(" -> ")[0] for line in found} <= REPORTING_WIDGET_IMPORTS, found
 
 
-
 def test_the_case_package_imports_only_the_kernel_and_the_limits():
     ours = {t for m, targets in ALL.items() if _in(m, "orbitledger.case") for t in targets}
     assert {t for t in ours if not _in(t, *CASE_MAY_IMPORT)} == set()

@@ -12,8 +12,9 @@ from __future__ import annotations
 import hashlib
 import os
 import tempfile
+from collections.abc import Callable
 from pathlib import Path
-from typing import Any, Protocol
+from typing import Any, BinaryIO, Protocol
 
 from ..limits import MAX_CASE_FILE_BYTES, read_input_bytes
 from .errors import MISSING, CaseError, CaseFileChanged, CaseFileNotFound
@@ -27,6 +28,7 @@ __all__ = [
     "open_case",
     "write_new_case",
     "atomic_write_text",
+    "atomic_write",
     "CaseRegistry",
 ]
 
@@ -62,22 +64,39 @@ def load_case(path: str | os.PathLike) -> Case:
 
 
 def atomic_write_text(
-    path: str | os.PathLike, text: str, *, exclusive: bool = False, mode: int | None = None
+    path: str | os.PathLike, text: str | bytes, *, exclusive: bool = False, mode: int | None = None
 ) -> bytes:
-    """Write ``text`` (UTF-8) to ``path`` atomically; returns the bytes written.
+    """Write ``text`` (UTF-8; bytes as they are) to ``path`` atomically; returns the bytes written.
 
     ``exclusive=True`` refuses (FileExistsError) when ``path`` exists, also atomically: the
     temporary file is hard-linked into place, which fails if the name is taken. ``mode`` sets
     the file's permissions (e.g. 0o600 for a private key; the temporary file is 0600 from its
     creation, so the text is never readable by others on the way).
     """
+    data = text.encode("utf-8") if isinstance(text, str) else bytes(text)
+    atomic_write(path, lambda stream: stream.write(data), exclusive=exclusive, mode=mode)
+    return data
+
+
+def atomic_write(
+    path: str | os.PathLike,
+    write: Callable[[BinaryIO], Any],
+    *,
+    exclusive: bool = False,
+    mode: int | None = None,
+) -> None:
+    """``write(stream)`` into a temporary file beside ``path``, fsync it, then move it into place.
+
+    The one atomic writer of the package (case files, keys, trade tables, ledger artifacts):
+    a reader sees the old file or the new one, never half of one; a failure leaves no
+    temporary file. ``exclusive`` and ``mode`` as in :func:`atomic_write_text`.
+    """
     path = Path(path)
-    data = text.encode("utf-8")
     folder = path.parent if str(path.parent) else Path(".")
     handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
     try:
         with os.fdopen(handle, "wb") as stream:
-            stream.write(data)
+            write(stream)
             stream.flush()
             os.fsync(stream.fileno())
         if mode is None:
@@ -94,7 +113,7 @@ def atomic_write_text(
             except (AttributeError, NotImplementedError, PermissionError):
                 with open(path, "xb") as stream:  # file systems without hard links
                     os.chmod(path, mode)
-                    stream.write(data)
+                    write(stream)
                     stream.flush()
                     os.fsync(stream.fileno())
             os.unlink(temporary)
@@ -105,7 +124,6 @@ def atomic_write_text(
             os.unlink(temporary)
         raise
     _fsync_folder(folder)
-    return data
 
 
 def _fsync_folder(folder: Path) -> None:

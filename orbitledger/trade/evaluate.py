@@ -25,6 +25,7 @@ from typing import Any
 
 import numpy as np
 
+from ..case.units import unit_of
 from ..kernel.errors import InputError
 from .metrics import (
     GROUP_WIDTH,
@@ -282,7 +283,7 @@ def evaluate_cases(
             "inputs": list(columns),
             "metrics": list(selection.columns),
             "groups": list(selection.groups),
-            "units": {**{p: _path_unit(p) for p in columns}, **dict(selection.units)},
+            "units": {**{p: unit_of(p) for p in columns}, **dict(selection.units)},
             "repeat": list(selection.repeat) if selection.repeat else None,
             **dict(attrs or {}),
         }
@@ -317,22 +318,3 @@ def _chunks(
         )
         for start in range(0, table.shape[0], size)
     ]
-
-
-def _path_unit(path: str) -> str:
-    """The unit an input's path names by its suffix (``orbit.altitude_km`` -> ``km``)."""
-    last = path.rsplit(".", 1)[-1].split("[", 1)[0]
-    for suffix, unit in (
-        ("_km_s", "km/s"),
-        ("_km", "km"),
-        ("_deg", "deg"),
-        ("_s", "s"),
-        ("_kg", "kg"),
-        ("_m2", "m^2"),
-        ("_years", "yr"),
-        ("_percent", "%"),
-        ("_arcsec", "arcsec"),
-    ):
-        if last.endswith(suffix):
-            return unit
-    return ""
