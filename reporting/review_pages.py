@@ -44,7 +44,7 @@ def render(template: str, **context: Any) -> str:
 
 
 def _text(value: Any) -> str:
-    from .filters import format_value
+    from .templating import format_value
 
     return "—" if value is None else format_value(value)
 

@@ -67,7 +67,7 @@ def first_text_difference(shown: list[dict[str, Any]], stated: list[dict[str, An
 def _required(record: dict[str, Any]) -> list[tuple[str, str, str]]:
     """(section id, what, text) that the record's own data puts on the page."""
     from .display import display_result
-    from .filters import safe_markdown
+    from .exporter import safe_markdown
 
     rev = record.get("revision")
     out = [
@@ -183,7 +183,7 @@ def table_values(record: dict[str, Any]) -> dict[str, str]:
     """What the tables must show for each value of the record (the templates' formatting)."""
     from .diff import flatten
     from .display import display_result
-    from .filters import format_value
+    from .templating import format_value
 
     def text(value: Any) -> str:
         return "—" if value is None else format_value(value)
