@@ -32,6 +32,7 @@ __all__ = [
     "signoff_details",
     "signoff_from_row",
     "utc_now",
+    "parse_utc_stamp",
     "validate_record_id",
 ]
 
@@ -40,6 +41,12 @@ _RECORD_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,79}$")
 
 def utc_now() -> str:
     return datetime.now(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
+
+
+def parse_utc_stamp(text: Any) -> datetime:
+    """A time stamp as :func:`utc_now` writes it (``YYYY-MM-DDTHH:MM:SSZ``: UTC, no other zone
+    offset, whole seconds) as an aware UTC datetime; ValueError for anything else."""
+    return datetime.strptime(str(text), "%Y-%m-%dT%H:%M:%SZ").replace(tzinfo=timezone.utc)
 
 
 def sha256_hex(data: bytes) -> str:

@@ -43,6 +43,10 @@ HOMES: dict[str, tuple[str, dict[str, set[str]]]] = {
         r"utc_?now|now_?utc|^_?now$",
         {"orbitledger.reporting.ledger_parts": {"utc_now"}},
     ),
+    "UTC time stamp parser": (
+        r"parse_utc_stamp|parse_stamp|parse_time_utc|stamp_to_datetime",
+        {"orbitledger.reporting.ledger_parts": {"parse_utc_stamp"}},
+    ),
     "unit suffix of a field name": (
         r"unit_of|unit_for|split_unit|path_unit|unit_suffix",
         {
@@ -66,6 +70,9 @@ CALL_HOMES = {
     "tempfile.mkstemp": {"orbitledger.case.io"},
     "os.replace": {"orbitledger.case.io"},
     "os.link": {"orbitledger.case.io"},
+    # The record's time stamps (YYYY-MM-DDTHH:MM:SSZ) are read in one place.
+    "datetime.strptime": {"orbitledger.reporting.ledger_parts"},
+    "dt.datetime.strptime": {"orbitledger.reporting.ledger_parts"},
 }
 TQDM_HOMES = {"orbitledger.progress"}
 
@@ -161,3 +168,19 @@ def test_the_one_canonical_json_folds_negative_zero_for_records_too():
     assert canonical_dumps({"b": -0.0, "a": [1, (2, 3)]}) == '{"a":[1,[2,3]],"b":0.0}'
     assert canonical_dumps is canonical_json
     assert fingerprint_of({"x": -0.0}) == fingerprint_of({"x": 0.0})
+
+
+def test_the_one_time_stamp_parser_takes_only_what_utc_now_writes():
+    # ISO 8601 / RFC 3339 UTC ("Z") to the second, as the ledger and the signatures write it.
+    from datetime import datetime, timezone
+
+    from orbitledger.reporting.ledger_parts import parse_utc_stamp, utc_now
+
+    assert parse_utc_stamp("2026-03-01T12:30:05Z") == datetime(
+        2026, 3, 1, 12, 30, 5, tzinfo=timezone.utc
+    )
+    now = utc_now()
+    assert parse_utc_stamp(now).strftime("%Y-%m-%dT%H:%M:%SZ") == now
+    for other in ("2026-03-01T12:30:05+01:00", "2026-03-01 12:30:05", None, "2026-03-01T12:30:05"):
+        with pytest.raises(ValueError):
+            parse_utc_stamp(other)
