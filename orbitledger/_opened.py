@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import os
 
+from . import study
 from .case import CaseFile
 
 __all__ = ["StudyCaseFile", "open_case"]
@@ -28,5 +29,6 @@ class StudyCaseFile(CaseFile):
 
 def open_case(path: str | os.PathLike, *, create: bool = False) -> StudyCaseFile:
     """Load the case file at ``path``; ``create=True`` writes the starter case there first if
-    it is missing (else a missing file raises ``CaseFileNotFound`` naming the closest one)."""
-    return StudyCaseFile.open(path, create=create)
+    it is missing (else a missing file raises ``CaseFileNotFound`` naming the closest one).
+    Its loads and saves are noted in the study registry (:mod:`orbitledger.study`)."""
+    return StudyCaseFile.open(path, create=create, registry=study)

@@ -48,7 +48,7 @@ def noise_floor(unit: str) -> float:
 
 
 def _plain(value: Any) -> str:
-    from .templating import format_value
+    from .filters import format_value
 
     return format_value(value)
 

@@ -13,24 +13,19 @@ outputs are dropped; SVG is shown through ``<img>`` (where scripts never run).
 
 from __future__ import annotations
 
-import base64
 import copy
-import json
-import re
 from pathlib import Path
 from typing import Any
 
-import bleach
-import mistune
-from markupsafe import Markup
 from nbconvert.exporters import HTMLExporter
 from traitlets import default
 
 from orbitledger.study import SNAPSHOT_MIME
 
-from .build import FIGURE_MIME
 from .figure_items import drawable_item
+from .filters import _b64, json_for_script, safe_markdown, sanitize_html
 from .record_text import show_controls
+from .run import FIGURE_MIME
 from .safe_bokeh import safe_item
 from .templating import record_context
 
@@ -51,68 +46,6 @@ if not (TEMPLATES_DIR / "orbitrecord").is_dir():  # installed as a wheel: packag
 RESULT_MIME = "application/vnd.orbitledger.result+json"
 WIDGET_MIME = "application/vnd.jupyter.widget-view+json"
 NOTE_MIME = "application/vnd.orbitledger.note+json"  # our own placeholder for a dropped output
-
-# Tags and attributes kept from user HTML (tables from pandas, simple text markup).
-_TAGS = sorted(
-    set(bleach.sanitizer.ALLOWED_TAGS)
-    | {"p", "div", "span", "br", "hr", "pre", "code", "h1", "h2", "h3", "h4", "h5", "h6"}
-    | {"table", "thead", "tbody", "tfoot", "tr", "th", "td", "caption", "colgroup", "col"}
-    | {"sub", "sup", "dl", "dt", "dd", "del", "img"}
-)
-_ATTRS = {
-    "*": ["class", "title"],
-    "a": ["href", "title"],
-    "th": ["colspan", "rowspan", "align"],
-    "td": ["colspan", "rowspan", "align"],
-    "img": ["src", "alt", "width", "height"],
-    "abbr": ["title"],
-}
-_PROTOCOLS = ["http", "https", "mailto", "data"]
-
-_markdown = mistune.create_markdown(escape=True, plugins=["table", "strikethrough"])
-
-
-def _img_src_ok(tag: str, name: str, value: str) -> bool:
-    """Attribute filter: ``data:`` only as an image source of a raster type, never a link."""
-    if tag == "img" and name == "src":
-        return value.startswith(("data:image/png", "data:image/jpeg", "data:image/gif"))
-    if value.strip().lower().startswith("data:"):
-        return False
-    return name in _ATTRS.get(tag, []) or name in _ATTRS["*"]
-
-
-_cleaner = bleach.sanitizer.Cleaner(
-    tags=_TAGS,
-    attributes=_img_src_ok,
-    protocols=_PROTOCOLS,
-    strip=True,
-    strip_comments=True,
-)
-
-
-_SCRIPT_OR_STYLE = re.compile(r"<(script|style)\b.*?</\1\s*>", re.IGNORECASE | re.DOTALL)
-
-
-def sanitize_html(text: str) -> Markup:
-    """User HTML with scripts, event handlers, styles and unsafe URLs removed."""
-    return Markup(_cleaner.clean(_SCRIPT_OR_STYLE.sub("", show_controls(str(text)))))
-
-
-def safe_markdown(text: str) -> Markup:
-    """Markdown to HTML with raw HTML shown as text, then cleaned (links: http/https/mailto)."""
-    return Markup(_cleaner.clean(_markdown(show_controls(str(text)))))
-
-
-def json_for_script(value: Any) -> Markup:
-    """JSON safe inside ``<script type="application/json">``: ``<``, ``>``, ``&`` as escapes."""
-    text = value if isinstance(value, str) else json.dumps(value, ensure_ascii=False)
-    text = text.replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")
-    return Markup(text.replace("\u2028", "\\u2028").replace("\u2029", "\\u2029"))
-
-
-def _b64(text: str) -> str:
-    return base64.b64encode(text.encode("utf-8")).decode("ascii")
-
 
 _DROP_MIMES = ("application/vnd.bokehjs_load.v0+json", "application/vnd.bokehjs_exec.v0+json")
 
@@ -250,7 +183,8 @@ class OrbitRecordExporter(HTMLExporter):
 
     def _run_study(self, nb: Any, resources: dict[str, Any]) -> tuple[Any, dict[str, Any]]:
         """No record given (nbconvert, JupyterLab): run the study headless, no ledger."""
-        from .build import assemble_record, execute_study
+        from .assembly import assemble_record
+        from .run import execute_study
 
         meta = resources.get("metadata", {})
         folder = Path(meta.get("path") or ".").resolve()
@@ -275,7 +209,7 @@ class OrbitRecordPDFExporter(OrbitRecordExporter):
     ) -> Any:
         import nbformat
 
-        from .build import archived_notebook
+        from .assembly import archived_notebook
         from .render_pdf import print_record_pdf
 
         resources = dict(resources or {})

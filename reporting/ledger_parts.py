@@ -12,14 +12,14 @@ from __future__ import annotations
 
 import hashlib
 import json
-import os
 import re
-import time
 from dataclasses import dataclass, field, fields
 from datetime import datetime, timezone
 from pathlib import Path
 from typing import Any
 
+from orbitledger.case.canonical import canonical_json
+from orbitledger.case.io import atomic_write_text
 from orbitledger.kernel.errors import InputError
 
 __all__ = [
@@ -32,6 +32,7 @@ __all__ = [
     "signoff_details",
     "signoff_from_row",
     "utc_now",
+    "parse_utc_stamp",
     "validate_record_id",
 ]
 
@@ -40,6 +41,12 @@ _RECORD_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,79}$")
 
 def utc_now() -> str:
     return datetime.now(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
+
+
+def parse_utc_stamp(text: Any) -> datetime:
+    """A time stamp as :func:`utc_now` writes it (``YYYY-MM-DDTHH:MM:SSZ``: UTC, no other zone
+    offset, whole seconds) as an aware UTC datetime; ValueError for anything else."""
+    return datetime.strptime(str(text), "%Y-%m-%dT%H:%M:%SZ").replace(tzinfo=timezone.utc)
 
 
 def sha256_hex(data: bytes) -> str:
@@ -58,17 +65,6 @@ def validate_record_id(record_id: str) -> str:
     return record_id
 
 
-def _fsync_dir(path: Path) -> None:
-    try:
-        fd = os.open(path, os.O_RDONLY)
-    except OSError:  # some platforms cannot open a directory
-        return
-    try:
-        os.fsync(fd)
-    finally:
-        os.close(fd)
-
-
 def atomic_write_once(path: Path, data: bytes) -> None:
     """Write ``data`` to ``path`` atomically, refusing to replace an existing file.
 
@@ -76,28 +72,12 @@ def atomic_write_once(path: Path, data: bytes) -> None:
     if the name exists: no check-then-write race), then the temporary name is removed.
     """
     path.parent.mkdir(parents=True, exist_ok=True)
-    tmp = path.parent / f".tmp-{path.name}-{os.getpid()}-{time.monotonic_ns()}"
-    # Read-only from the start (the open descriptor can still write): write-once on disk too.
-    fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o444)
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-            fh.flush()
-            os.fsync(fh.fileno())
-        try:
-            os.link(tmp, path)
-        except FileExistsError:
-            raise InputError(
-                str(path), None, "artifact exists already; artifacts are write-once"
-            ) from None
-        except OSError:  # a file system without hard links: exclusive create, then rename
-            if path.exists():
-                raise InputError(str(path), None, "artifact exists already") from None
-            os.replace(tmp, path)
-    finally:
-        if tmp.exists():
-            tmp.unlink()
-    _fsync_dir(path.parent)
+    try:  # the one atomic writer (case/io); the artifact is read-only (0o444): write-once
+        atomic_write_text(path, data, exclusive=True, mode=0o444)
+    except FileExistsError:
+        raise InputError(
+            str(path), None, "artifact exists already; artifacts are write-once"
+        ) from None
 
 
 @dataclass(frozen=True)
@@ -137,7 +117,7 @@ def signoff_details(signoff: SignOff) -> str:
     extra = {
         f.name: getattr(signoff, f.name) for f in fields(signoff) if f.name not in _SIGNOFF_COLUMNS
     }
-    return json.dumps(extra, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
+    return canonical_json(extra)
 
 
 def signoff_from_row(

@@ -27,6 +27,7 @@ from pathlib import Path
 from typing import Any
 
 from orbitledger._version import __version__
+from orbitledger.case.canonical import canonical_json as canonical_dumps  # the one home
 
 __all__ = [
     "RECORD_SCHEMA",
@@ -57,13 +58,6 @@ GENERAL_CAUTION = (
     "disposal compliance or launch decisions, defer to authoritative ephemerides and data, the "
     "licensing authority and licensed practice."
 )
-
-
-def canonical_dumps(value: Any) -> str:
-    """Canonical JSON: sorted keys, ``,``/``:`` separators, UTF-8 text, floats by ``repr``."""
-    return json.dumps(
-        value, sort_keys=True, separators=(",", ":"), ensure_ascii=False, allow_nan=False
-    )
 
 
 def fingerprint_of(value: Any) -> str:

@@ -92,7 +92,7 @@ def shown_fingerprints(record: dict[str, Any]) -> dict[str, str]:
 
 def seal(html: str, record: dict[str, Any]) -> str:
     """The page with its policy and its complete record JSON; ``record`` completed (module doc)."""
-    from .exporter import json_for_script
+    from .filters import json_for_script
 
     page = read_page(html)
     executable = [b.text for b in page.scripts if b.executable]

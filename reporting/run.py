@@ -14,7 +14,6 @@ import copy
 import logging
 import os
 import re
-import sys
 import tempfile
 from pathlib import Path
 from typing import Any
@@ -63,34 +62,18 @@ class _Progress:
     """A per-cell progress bar: tqdm on a terminal (stderr), tqdm's widget in a notebook."""
 
     def __init__(self, total: int, name: str, enabled: bool) -> None:
-        self.bar = None
-        if not enabled:
-            return
-        in_notebook = False
-        if "ipykernel" in sys.modules:
-            try:
-                from IPython import get_ipython
+        from orbitledger.progress import progress_bar
 
-                in_notebook = get_ipython() is not None and hasattr(get_ipython(), "kernel")
-            except ImportError:
-                in_notebook = False
-        if in_notebook:
-            from tqdm.notebook import tqdm as tqdm_notebook
-
-            self.bar = tqdm_notebook(total=total, desc=name, unit="cell")
-        elif sys.stderr.isatty():
-            from tqdm import tqdm
-
-            self.bar = tqdm(total=total, desc=name, unit="cell", file=sys.stderr, leave=False)
+        # None: a bar only where someone watches (a notebook, a terminal's stderr).
+        self.bar = progress_bar(total, name, None if enabled else False, unit="cell")
 
     def step(self, text: str) -> None:
-        if self.bar is not None:
+        if hasattr(self.bar, "set_postfix_str"):
             self.bar.set_postfix_str(text[:30], refresh=False)
-            self.bar.update(1)
+        self.bar.update(1)
 
     def close(self) -> None:
-        if self.bar is not None:
-            self.bar.close()
+        self.bar.close()
 
 
 def execute_study(

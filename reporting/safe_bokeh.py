@@ -8,7 +8,8 @@ those two, by hash). A Bokeh figure item (``bokeh.embed.json_item``) can carry m
   is compiled to a function), ``OpenURL`` (navigates away). ``safe_item`` refuses these with
   ``UnsafeFigure``: a record does not run study code, and a figure silently changed would not be
   the figure the study showed. The message names the figure and the model. The one exception
-  is orbitledger's own figure code (the inertial view's ``PROJECT_JS``, matched exactly).
+  is orbitledger's own figure code, matched exactly: the scripts the figures package declares
+  (``orbitledger.figures.own_scripts``; the inertial view's ``PROJECT_JS``).
 - markup that BokehJS puts into the page as HTML: the text of a ``Div`` (unless
   ``render_as_text``) or ``Paragraph``, a ``HoverTool``'s tooltips given as one HTML string, a
   ``Tooltip``'s string content. ``safe_item`` cleans each with the record's HTML cleaner
@@ -37,11 +38,12 @@ class UnsafeFigure(ValueError):
 
 
 def _own_code() -> frozenset[str]:
-    """The JavaScript of orbitledger's own figures (the inertial view's re-projection): part of
-    this software, the same in every record, not code written by a study."""
-    from orbitledger.figures.inertial import PROJECT_JS
+    """The JavaScript of orbitledger's own figures, as they declare it
+    (``orbitledger.figures.own_scripts``): part of this software, the same in every record, not
+    code written by a study."""
+    from orbitledger.figures.own_scripts import declared_scripts
 
-    return frozenset({PROJECT_JS})
+    return frozenset(declared_scripts().values())
 
 
 def _code_reason(name: str, node: dict[str, Any] | None = None) -> str | None:
@@ -76,13 +78,13 @@ def _models(node: Any):
             yield node
         for value in node.values():
             yield from _models(value)
-    elif isinstance(node, list):
+    elif isinstance(node, list | tuple):  # tuples: an item not yet through JSON (map entries)
         for value in node:
             yield from _models(value)
 
 
 def _clean(text: str) -> str:
-    from .exporter import sanitize_html
+    from .filters import sanitize_html
 
     return str(sanitize_html(text))
 

@@ -23,7 +23,6 @@ An *unsigned* entry (``--name`` without a key) has ``"signed": false`` and nothi
 from __future__ import annotations
 
 import base64
-import datetime as dt
 import json
 from typing import Any
 
@@ -33,6 +32,7 @@ from cryptography.hazmat.primitives import hashes
 from cryptography.hazmat.primitives.asymmetric import ec, padding, rsa
 
 from .keys import Signer, cert_fingerprint, cert_identity
+from .ledger_parts import parse_utc_stamp
 from .record import canonical_dumps, fingerprint_of
 
 __all__ = [
@@ -202,8 +202,7 @@ def check_entry(
             f"the signer signed {str(statement.get('record_sha256'))[:16]}...)"
         )
     try:
-        when = dt.datetime.strptime(str(statement.get("time_utc")), "%Y-%m-%dT%H:%M:%SZ")
-        when = when.replace(tzinfo=dt.timezone.utc)
+        when = parse_utc_stamp(statement.get("time_utc"))
     except ValueError:
         problems.append(f"the signing time {statement.get('time_utc')!r} is not a UTC time")
     else:

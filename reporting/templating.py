@@ -13,8 +13,11 @@ from typing import Any
 
 from markupsafe import Markup
 
-from .build import FIGURE_MIME
+from orbitledger.case.units import unit_of
+
+from .filters import format_value, json_for_script
 from .record import canonical_dumps
+from .run import FIGURE_MIME
 
 __all__ = [
     "constants_table",
@@ -25,46 +28,6 @@ __all__ = [
     "standard_side_by_side",
     "unit_of",
 ]
-
-
-# Unit suffixes of case-file field names (docs/case-file.md), longest first.
-_UNITS = (
-    ("_km3_s2", "km^3/s^2"),
-    ("_km2_s2", "km^2/s^2"),
-    ("_km2_s", "km^2/s"),
-    ("_rad_s", "rad/s"),
-    ("_km_s", "km/s"),
-    ("_km", "km"),
-    ("_deg", "deg"),
-    ("_arcsec", "arcsec"),
-    ("_kg", "kg"),
-    ("_m2", "m^2"),
-    ("_utc", "UTC"),
-    ("_percent", "%"),
-    ("_years", "years"),
-    ("_s", "s"),
-)
-
-
-def unit_of(path: str) -> str:
-    """The unit a case-file field carries in its name (``orbit.altitude_km`` -> ``km``)."""
-    leaf = re.sub(r"\[\d+\]$", "", path.rsplit(".", 1)[-1])
-    for suffix, unit in _UNITS:
-        if leaf.endswith(suffix):
-            return unit
-    return ""
-
-
-def format_value(value: Any) -> str:
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, float):
-        return f"{value:.10g}"
-    if value is None:
-        return "null"
-    if isinstance(value, list | dict):
-        return json.dumps(value, ensure_ascii=False)
-    return str(value)
 
 
 _SECTION_ORDER = (
@@ -266,7 +229,6 @@ def _bokeh_js(nb: Any) -> Markup:
 def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
     """The template's view of ``record`` (and of the prepared notebook ``nb``)."""
     from .display import display_result
-    from .exporter import json_for_script
     from .record_page import POLICY, SCRIPT_SOURCES
     from .findings import findings_view
 

@@ -20,11 +20,10 @@
 
 from __future__ import annotations
 
-import hashlib
 import json
 from typing import Any
 
-from .record_page import markup_sha256, policy_with, shown_fingerprints
+from .record_page import _sha, markup_sha256, policy_with, shown_fingerprints
 from .record_text import Page, read_page, section_text
 
 __all__ = ["check_page", "first_text_difference", "table_values"]
@@ -63,10 +62,6 @@ def first_text_difference(shown: list[dict[str, Any]], stated: list[dict[str, An
         if [k for k, _ in shown_by[s["id"]]["runs"]] != [k for k, _ in s["runs"]]:
             return f"section {s['title']!r}: text moved between screen and paper"
     return ""
-
-
-def _sha(text: str) -> str:
-    return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
 def _required(record: dict[str, Any]) -> list[tuple[str, str, str]]:

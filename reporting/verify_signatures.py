@@ -34,6 +34,7 @@ from cryptography.hazmat.primitives import serialization
 from orbitledger.kernel.errors import InputError
 
 from .keys import cert_fingerprint, cert_identity, load_certificates
+from .ledger_parts import parse_utc_stamp
 from .sign_pdf import ROLE_ORDER, outside_event_loop
 from .signatures import check_entry
 
@@ -100,8 +101,8 @@ def trust_problem(
 
 def _when(text: str) -> dt.datetime | None:
     try:
-        return dt.datetime.strptime(text, "%Y-%m-%dT%H:%M:%SZ").replace(tzinfo=dt.timezone.utc)
-    except (TypeError, ValueError):
+        return parse_utc_stamp(text)
+    except ValueError:
         return None
 
 

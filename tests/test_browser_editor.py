@@ -3,8 +3,8 @@
 What an analyst does and sees: typing into a table cell (the case file holds only committed
 values), switching the orbit form there and back (the file and its fingerprint unchanged), the
 dark theme (the figures' background turns dark: pixels sampled from the canvas) and Cancel of
-the background results (a clear state, and Run brings them back). The server, browser and
-notebook helpers are those of test_browser_lab.py. References: latitude lies in [-90, 90] deg
+the background results (a clear state, and Run brings them back). The start-up is the
+``jupyter_editor`` fixture (tests/conftest.py). References: latitude lies in [-90, 90] deg
 (docs/case-file.md); a colour is "dark" below a relative luminance of 0.25, the sRGB weights of
 ITU-R BT.709 (0.2126 R + 0.7152 G + 0.0722 B).
 """
@@ -18,15 +18,7 @@ import time
 from pathlib import Path
 
 import pytest
-from test_browser_lab import (
-    CHROMIUM,
-    Server,
-    _accept_kernel_dialog,
-    _artefact,
-    _launch,
-    _run_all,
-    _wait_for,
-)
+from test_browser_lab import _artefact, _wait_for
 
 from orbitledger.case import load_case
 
@@ -60,46 +52,13 @@ def write_notebook(folder: Path) -> None:
 
 
 @contextlib.contextmanager
-def editor_page(app: str, path: str, tmp_path: Path):
+def editor_page(app: str, path: str, tmp_path: Path, jupyter_editor):
     """(page, editor locator, case file) with the notebook run and the first figure drawn."""
-    if not Path(CHROMIUM).exists():
-        pytest.skip("chromium is not installed (CI installs Debian's chromium)")
-    sync_api = pytest.importorskip("playwright.sync_api")
     root = tmp_path / "study"
     root.mkdir()
     write_notebook(root)
-    (tmp_path / "home").mkdir()
-    server = Server(app, root, tmp_path / "home")
-    try:
-        with sync_api.sync_playwright() as p:
-            browser = _launch(p, tmp_path)
-            page = browser.pages[0] if browser.pages else browser.new_page()
-            try:
-                page.goto(server.url(path))
-                page.locator(".jp-Notebook").first.wait_for(timeout=60_000)
-                idle = page.locator(".jp-Notebook-ExecutionIndicator[data-status='idle']")
-                idle.first.wait_for(state="attached", timeout=60_000)
-                editor = page.locator(".ol-editor").first
-                for _attempt in range(3):  # a Run All sent while the session connects is lost
-                    _accept_kernel_dialog(page)
-                    _run_all(page)
-                    _accept_kernel_dialog(page)
-                    try:
-                        editor.wait_for(timeout=60_000)
-                        break
-                    except sync_api.TimeoutError:
-                        continue
-                else:
-                    raise AssertionError("the editor did not appear after three Run All")
-                editor.locator(".ol-figure canvas").first.wait_for(timeout=60_000)
-                yield page, editor, root / "starter.case.json"
-            except Exception:
-                _artefact(tmp_path, f"{app}-failure.png", page.screenshot(full_page=True))
-                raise
-            finally:
-                browser.close()
-    finally:
-        server.stop()
+    with jupyter_editor(app, path, root) as (page, editor, _server):
+        yield page, editor, root / "starter.case.json"
 
 
 def _luminance(png: bytes, where: str = "corners") -> float:
@@ -124,8 +83,8 @@ def _pick_theme(page, app: str, name: str) -> None:
 
 
 @pytest.mark.parametrize(("app", "path"), APPS)
-def test_table_cells_and_form_switching_in_the_browser(app: str, path: str, tmp_path: Path):
-    with editor_page(app, path, tmp_path) as (page, editor, case_file):
+def test_table_cells_and_form_switching_in_the_browser(app: str, path: str, tmp_path: Path, jupyter_editor):
+    with editor_page(app, path, tmp_path, jupyter_editor) as (page, editor, case_file):
         table = editor.locator(".ol-table").first
         lat = table.locator(".ol-field").first.locator("input").nth(1)
         lat.click()
@@ -162,9 +121,9 @@ def test_table_cells_and_form_switching_in_the_browser(app: str, path: str, tmp_
 
 
 @pytest.mark.parametrize(("app", "path"), APPS)
-def test_dark_theme_and_cancel_in_the_browser(app: str, path: str, tmp_path: Path):
+def test_dark_theme_and_cancel_in_the_browser(app: str, path: str, tmp_path: Path, jupyter_editor):
     sync_api = pytest.importorskip("playwright.sync_api")
-    with editor_page(app, path, tmp_path) as (page, editor, case_file):
+    with editor_page(app, path, tmp_path, jupyter_editor) as (page, editor, case_file):
         figure = editor.locator(".ol-figure").first
         figure.scroll_into_view_if_needed()
         _wait_for(lambda: _luminance(figure.screenshot()) > 0.75, 30, "the light figure")

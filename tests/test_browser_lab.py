@@ -235,64 +235,30 @@ def _wait_for(predicate, timeout_s: float, what: str) -> None:
 @pytest.mark.parametrize(
     ("app", "path"), [("lab", f"lab/tree/{NOTEBOOK}"), ("notebook", f"notebooks/{NOTEBOOK}")]
 )
-def test_edit_in_the_browser(app: str, path: str, tmp_path: Path) -> None:
-    if not Path(CHROMIUM).exists():
-        pytest.skip("chromium is not installed (CI installs Debian's chromium)")
-    sync_api = pytest.importorskip("playwright.sync_api")
+def test_edit_in_the_browser(app: str, path: str, tmp_path: Path, jupyter_editor) -> None:
     root = tmp_path / "study"
     shutil.copytree(EXAMPLES, root)
-    (tmp_path / "home").mkdir()
-    server = Server(app, root, tmp_path / "home")
-    try:
-        with sync_api.sync_playwright() as p:
-            browser = _launch(p, tmp_path)
-            try:
-                page = browser.pages[0] if browser.pages else browser.new_page()
-                page.goto(server.url(path))
-                page.locator(".jp-Notebook").first.wait_for(timeout=60_000)
-                idle = page.locator(".jp-Notebook-ExecutionIndicator[data-status='idle']")
-                idle.first.wait_for(state="attached", timeout=60_000)
-                editor = page.locator(".ol-editor").first
-                for attempt in range(3):  # a Run All sent while the session connects is lost
-                    _accept_kernel_dialog(page)
-                    _run_all(page)
-                    _accept_kernel_dialog(page)
-                    try:
-                        editor.wait_for(timeout=60_000)
-                        break
-                    except sync_api.TimeoutError:
-                        log.warning("no editor after Run All (attempt %d)", attempt + 1)
-                else:
-                    raise AssertionError("the editor did not appear after three Run All")
-                figure = editor.locator(".ol-figure canvas").first
-                figure.wait_for(timeout=60_000)
-                before_text = _periapsis_text(page)
-                editor.scroll_into_view_if_needed()
-                time.sleep(1.0)  # let BokehJS finish its first paint
-                before_png = editor.locator(".ol-figure").first.screenshot()
-                _artefact(tmp_path, f"{app}-editor-before.png", editor.screenshot())
+    with jupyter_editor(app, path, root) as (page, editor, server):
+        before_text = _periapsis_text(page)
+        editor.scroll_into_view_if_needed()
+        time.sleep(1.0)  # let BokehJS finish its first paint
+        before_png = editor.locator(".ol-figure").first.screenshot()
+        _artefact(tmp_path, f"{app}-editor-before.png", editor.screenshot())
 
-                field = editor.get_by_label("Eccentricity", exact=True)
-                field.fill("0.05")
-                field.press("Tab")
-                _wait_for(lambda: _periapsis_text(page) != before_text, 30, "the new periapsis")
-                after_text = _periapsis_text(page)
-                a_km = R_EQ_KM + 540.0
-                expected = a_km * (1 - 0.05) - R_EQ_KM  # Vallado Eq. 2-57
-                assert abs(float(after_text) - expected) < 0.01  # shown to 10 m or better
-                time.sleep(1.0)
-                after_png = editor.locator(".ol-figure").first.screenshot()
-                assert _pixels(after_png) != _pixels(before_png), "the canvas was not redrawn"
-                shot = editor.screenshot()
-                _artefact(tmp_path, f"{app}-editor-after.png", shot)
-                docs = os.environ.get("ORBITLEDGER_SCREENSHOTS")
-                if docs and app == "lab":
-                    _doc_screenshots(page, editor, Path(docs))
-            except Exception:
-                _artefact(tmp_path, f"{app}-failure.png", page.screenshot(full_page=True))
-                raise
-            finally:
-                browser.close()
-    finally:
-        server.stop()
+        field = editor.get_by_label("Eccentricity", exact=True)
+        field.fill("0.05")
+        field.press("Tab")
+        _wait_for(lambda: _periapsis_text(page) != before_text, 30, "the new periapsis")
+        after_text = _periapsis_text(page)
+        a_km = R_EQ_KM + 540.0
+        expected = a_km * (1 - 0.05) - R_EQ_KM  # Vallado Eq. 2-57
+        assert abs(float(after_text) - expected) < 0.01  # shown to 10 m or better
+        time.sleep(1.0)
+        after_png = editor.locator(".ol-figure").first.screenshot()
+        assert _pixels(after_png) != _pixels(before_png), "the canvas was not redrawn"
+        shot = editor.screenshot()
+        _artefact(tmp_path, f"{app}-editor-after.png", shot)
+        docs = os.environ.get("ORBITLEDGER_SCREENSHOTS")
+        if docs and app == "lab":
+            _doc_screenshots(page, editor, Path(docs))
     assert server.proc.poll() is not None

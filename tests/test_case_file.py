@@ -64,12 +64,35 @@ def test_open_case_of_a_missing_file_names_it_and_the_closest_case_file(tmp_path
 
 def test_load_and_save_are_noted_in_the_study_registry(case_path):
     study.reset()
-    case_file = CaseFile(case_path)
+    case_file = CaseFile(case_path, registry=study)
     noted = {c.path: c.fingerprint for c in study.opened_cases()}
     assert noted[str(case_path.resolve())] == case_file.fingerprint
     saved = case_file.save(case_file.case.with_changes({"orbit.e": 0.002}))
     noted = {c.path: c.fingerprint for c in study.opened_cases()}
     assert noted[str(case_path.resolve())] == saved.fingerprint != starter_case().fingerprint
+    study.reset()
+    orbitledger.open_case(case_path)  # a study notebook's opener passes the study registry
+    assert [c.path for c in study.opened_cases()] == [str(case_path.resolve())]
+
+
+def test_the_case_layer_notes_nothing_without_a_registry(case_path):
+    # The registry is given per case file, not written globally on every load (issue 16).
+    study.reset()
+    case_file = CaseFile(case_path)
+    case_file.save(case_file.case.with_changes({"orbit.e": 0.002}))
+    load_case(case_path)
+    open_case(case_path).reload()
+    assert study.opened_cases() == []
+    seen = []
+
+    class Registry:
+        def note_case(self, path, fingerprint):
+            seen.append((str(path), fingerprint))
+
+    own = open_case(case_path, registry=Registry())
+    own.save(own.case.with_changes({"orbit.e": 0.003}))
+    assert [path for path, _ in seen] == [str(case_path)] * 2
+    assert seen[1][1] == own.fingerprint != seen[0][1] and study.opened_cases() == []
 
 
 def test_save_writes_the_new_case_and_leaves_no_temporary_file(case_path):

@@ -14,6 +14,8 @@ from typing import Any
 
 import ipywidgets as w
 
+from orbitledger.case.units import unit_of
+
 __all__ = [
     "BoolField",
     "ChoiceField",
@@ -27,22 +29,6 @@ __all__ = [
     "unit_for",
 ]
 
-# Unit suffixes of case-file names, longest first so "_km_s" wins over "_s" (docs/case-file.md).
-_UNIT_SUFFIXES: tuple[tuple[str, str], ...] = (
-    ("_km3_s2", "km\u00b3/s\u00b2"),
-    ("_km2_s2", "km\u00b2/s\u00b2"),
-    ("_km_s", "km/s"),
-    ("_m_s", "m/s"),
-    ("_arcsec", "arcsec"),
-    ("_percent", "%"),
-    ("_years", "yr"),  # as the results write it (lifetime, yr)
-    ("_deg", "deg"),
-    ("_utc", "UTC"),
-    ("_km", "km"),
-    ("_kg", "kg"),
-    ("_m2", "m\u00b2"),
-    ("_s", "s"),
-)
 
 # Labels an analyst reads; a name not listed here is shown with its underscores as spaces.
 _LABELS = {
@@ -85,11 +71,11 @@ INPUT_WIDTH = "16em"  # a full double, -4.610733100000001e-16, in a monospace fo
 
 
 def unit_for(name: str) -> str:
-    """The unit carried in a case-file field name (``"i_deg"`` -> ``"deg"``); ``""`` if none."""
-    for suffix, unit in _UNIT_SUFFIXES:
-        if name.endswith(suffix):
-            return unit
-    return ""
+    """The unit carried in a case-file field name (``"i_deg"`` -> ``"deg"``); ``""`` if none.
+
+    From the one table of unit suffixes (``orbitledger.case.units``), powers as superscripts.
+    """
+    return unit_of(name).replace("^2", "\u00b2").replace("^3", "\u00b3")
 
 
 def label_for(name: str) -> str:

@@ -26,6 +26,7 @@ from collections import OrderedDict
 from collections.abc import Callable
 from typing import Any
 
+from orbitledger.analysis import ALL_GROUPS
 from orbitledger.case.canonical import canonical_json
 
 __all__ = [
@@ -39,7 +40,7 @@ __all__ = [
 ]
 
 # Sections of the case's data that a computation does not read (see the module docstring).
-IGNORED: dict[str, frozenset[str]] = {
+_UNREAD: dict[str, frozenset[str]] = {
     "orbit": frozenset({"meta", "stations", "window", "burns", "budget"}),
     "j2": frozenset({"meta", "stations", "window", "burns", "budget"}),
     "trajectory": frozenset({"meta", "stations", "burns", "budget"}),
@@ -51,6 +52,19 @@ IGNORED: dict[str, frozenset[str]] = {
     # the IERS values used: read at the epoch and over the window
     "earth_orientation": frozenset({"meta", "stations", "burns", "budget"}),
 }
+
+
+def ignored_sections(
+    groups: tuple[str, ...], unread: dict[str, frozenset[str]]
+) -> dict[str, frozenset[str]]:
+    """The sections each computation may skip: one entry per result group of ``groups``
+    (``orbitledger.analysis.ALL_GROUPS``), those listed in ``unread`` with theirs and any other
+    with none (it reads the whole case, so it is never served stale), then the computations
+    that are not result groups (the trajectory, one orbit)."""
+    return {**{g: unread.get(g, frozenset()) for g in groups}, **unread}
+
+
+IGNORED = ignored_sections(ALL_GROUPS, _UNREAD)
 
 # What each figure's kernel work needs: "orbit" (a conic, analytic: fast), "window" (the
 # trajectory over the analysis window: fast for the analytic propagators, seconds for the

@@ -13,10 +13,11 @@ import re
 from collections.abc import Mapping
 from typing import Any
 
+from ..kernel.errors import InputError
 from .errors import MISSING, CaseError
 from .validation import format_path
 
-__all__ = ["parse_path", "apply_changes", "plain_value"]
+__all__ = ["parse_path", "apply_changes", "plain_value", "check_input_path"]
 
 _PARTNERS = {
     "a_km": "altitude_km",
@@ -46,6 +47,34 @@ def parse_path(path: str) -> list[str | int]:
         tokens.append(int(index) if index is not None else int(name) if name.isdigit() else name)
         position = match.end()
     return tokens
+
+
+def check_input_path(base: Any, path: str) -> Any:
+    """The base case's value at ``path``; refuses a path not in the case or not a number.
+
+    A path that is null in the base case is accepted when its either-or partner is set
+    (``orbit.a_km`` in a case given by ``orbit.altitude_km``): changing it replaces the partner.
+    """
+    tokens = parse_path(path)
+    node: Any = base.to_data()
+    for depth, token in enumerate(tokens):
+        last = depth == len(tokens) - 1
+        if isinstance(node, list) and isinstance(token, int) and 0 <= token < len(node):
+            node = node[token]
+        elif isinstance(node, dict) and isinstance(token, str) and token in node:
+            parent, node = node, node[token]
+            if node is None and last and token in _PARTNERS:
+                if parent.get(_PARTNERS[token]) is not None:
+                    return None
+            if node is None:
+                raise InputError(path, None, "is not set in the base case: nothing to vary")
+        else:
+            known = ", ".join(sorted(node)) if isinstance(node, dict) else ""
+            hint = f" (fields here: {known})" if known else ""
+            raise InputError(path, MISSING, f"is not an input of the case{hint}")
+    if isinstance(node, bool) or not isinstance(node, int | float):
+        raise InputError(path, node, "is not a numeric input of the case")
+    return node
 
 
 def plain_value(value: Any) -> Any:

@@ -12,10 +12,10 @@ from __future__ import annotations
 import hashlib
 import os
 import tempfile
+from collections.abc import Callable
 from pathlib import Path
-from typing import Any
+from typing import Any, BinaryIO, Protocol
 
-from .. import study
 from ..limits import MAX_CASE_FILE_BYTES, read_input_bytes
 from .errors import MISSING, CaseError, CaseFileChanged, CaseFileNotFound
 from .model import Case, case_from_data
@@ -28,7 +28,15 @@ __all__ = [
     "open_case",
     "write_new_case",
     "atomic_write_text",
+    "atomic_write",
+    "CaseRegistry",
 ]
+
+
+class CaseRegistry(Protocol):
+    """Where a study notes the case files it loads and saves (``orbitledger.study`` is one)."""
+
+    def note_case(self, path: str | os.PathLike, fingerprint: str) -> None: ...
 
 
 def parse_case(text: str | bytes, file: str | os.PathLike | None = None) -> Case:
@@ -56,22 +64,39 @@ def load_case(path: str | os.PathLike) -> Case:
 
 
 def atomic_write_text(
-    path: str | os.PathLike, text: str, *, exclusive: bool = False, mode: int | None = None
+    path: str | os.PathLike, text: str | bytes, *, exclusive: bool = False, mode: int | None = None
 ) -> bytes:
-    """Write ``text`` (UTF-8) to ``path`` atomically; returns the bytes written.
+    """Write ``text`` (UTF-8; bytes as they are) to ``path`` atomically; returns the bytes written.
 
     ``exclusive=True`` refuses (FileExistsError) when ``path`` exists, also atomically: the
     temporary file is hard-linked into place, which fails if the name is taken. ``mode`` sets
     the file's permissions (e.g. 0o600 for a private key; the temporary file is 0600 from its
     creation, so the text is never readable by others on the way).
     """
+    data = text.encode("utf-8") if isinstance(text, str) else bytes(text)
+    atomic_write(path, lambda stream: stream.write(data), exclusive=exclusive, mode=mode)
+    return data
+
+
+def atomic_write(
+    path: str | os.PathLike,
+    write: Callable[[BinaryIO], Any],
+    *,
+    exclusive: bool = False,
+    mode: int | None = None,
+) -> None:
+    """``write(stream)`` into a temporary file beside ``path``, fsync it, then move it into place.
+
+    The one atomic writer of the package (case files, keys, trade tables, ledger artifacts):
+    a reader sees the old file or the new one, never half of one; a failure leaves no
+    temporary file. ``exclusive`` and ``mode`` as in :func:`atomic_write_text`.
+    """
     path = Path(path)
-    data = text.encode("utf-8")
     folder = path.parent if str(path.parent) else Path(".")
     handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
     try:
         with os.fdopen(handle, "wb") as stream:
-            stream.write(data)
+            write(stream)
             stream.flush()
             os.fsync(stream.fileno())
         if mode is None:
@@ -88,7 +113,7 @@ def atomic_write_text(
             except (AttributeError, NotImplementedError, PermissionError):
                 with open(path, "xb") as stream:  # file systems without hard links
                     os.chmod(path, mode)
-                    stream.write(data)
+                    write(stream)
                     stream.flush()
                     os.fsync(stream.fileno())
             os.unlink(temporary)
@@ -99,7 +124,6 @@ def atomic_write_text(
             os.unlink(temporary)
         raise
     _fsync_folder(folder)
-    return data
 
 
 def _fsync_folder(folder: Path) -> None:
@@ -135,18 +159,23 @@ class CaseFile:
     """A case bound to its file: ``.case`` is the current Case, ``save`` writes it back safely.
 
     Attribute access falls through to the case (``case_file.orbit`` is ``case_file.case.orbit``).
-    Every load and save is noted in :mod:`orbitledger.study`, so a record lists the case files
-    a study used, each with the fingerprint it last had.
+    ``registry`` (a :class:`CaseRegistry`, given per case file) is told of every load and save:
+    ``orbitledger.open_case`` passes the study registry :mod:`orbitledger.study`, so a record
+    lists the case files a study used, each with the fingerprint it last had. Without one
+    nothing is noted anywhere: the case layer keeps no global state.
     """
 
-    def __init__(self, path: str | os.PathLike) -> None:
+    def __init__(self, path: str | os.PathLike, *, registry: CaseRegistry | None = None) -> None:
         self._path = Path(path)
+        self._registry = registry
         self._case: Case
         self._disk_sha256: str
         self.reload()
 
     @classmethod
-    def open(cls, path: str | os.PathLike, *, create: bool = False) -> CaseFile:
+    def open(
+        cls, path: str | os.PathLike, *, create: bool = False, registry: CaseRegistry | None = None
+    ) -> CaseFile:
         """Open the case file at ``path``.
 
         A missing file is refused (``CaseFileNotFound`` naming the path and the closest
@@ -165,7 +194,7 @@ class CaseFile:
             except CaseError:
                 if not path.exists():  # not lost a race to another writer: a real failure
                     raise
-        return cls(path)
+        return cls(path, registry=registry)
 
     @property
     def path(self) -> Path:
@@ -185,7 +214,8 @@ class CaseFile:
         data = _read_bytes(self._path)
         self._case = parse_case(data, self._path)
         self._disk_sha256 = hashlib.sha256(data).hexdigest()
-        study.note_case(self._path, self._case.fingerprint)
+        if self._registry is not None:
+            self._registry.note_case(self._path, self._case.fingerprint)
         return self._case
 
     def changed_on_disk(self) -> bool:
@@ -222,7 +252,8 @@ class CaseFile:
             ) from None
         self._case = case
         self._disk_sha256 = hashlib.sha256(data).hexdigest()
-        study.note_case(self._path, case.fingerprint)
+        if self._registry is not None:
+            self._registry.note_case(self._path, case.fingerprint)
         return case
 
     def update(self, changes: dict[str, Any], *, force: bool = False) -> Case:
@@ -239,10 +270,13 @@ class CaseFile:
         return f"{type(self).__name__}({str(self._path)!r}, fingerprint={self.fingerprint[:12]}...)"
 
 
-def open_case(path: str | os.PathLike, *, create: bool = False) -> CaseFile:
+def open_case(
+    path: str | os.PathLike, *, create: bool = False, registry: CaseRegistry | None = None
+) -> CaseFile:
     """Load the case file at ``path`` as a CaseFile; ``create=True`` writes the starter case
-    there first if it is missing (else a missing file raises ``CaseFileNotFound``)."""
-    return CaseFile.open(path, create=create)
+    there first if it is missing (else a missing file raises ``CaseFileNotFound``).
+    ``registry`` is noted of its loads and saves (``orbitledger.open_case`` passes the study's)."""
+    return CaseFile.open(path, create=create, registry=registry)
 
 
 def missing_case_reason(path: Path) -> str:

@@ -20,22 +20,6 @@ CAUTION = (
     "authoritative ephemerides and data, the licensing authority and licensed practice."
 )
 
-# Unit suffixes of our field names, longest first, and how a table shows them.
-_UNITS = (
-    ("_km3_s2", "km^3/s^2"),
-    ("_km2_s2", "km^2/s^2"),
-    ("_km2_s", "km^2/s"),
-    ("_km_s", "km/s"),
-    ("_rad_s", "rad/s"),
-    ("_deg_s", "deg/s"),
-    ("_deg_day", "deg/day"),
-    ("_km", "km"),
-    ("_deg", "deg"),
-    ("_rad", "rad"),
-    ("_min", "min"),
-    ("_kg", "kg"),
-    ("_s", "s"),
-)
 _ELEMENT_LABELS = {
     "a_km": "semi-major axis a",
     "e": "eccentricity e",
@@ -173,10 +157,10 @@ def summary_data(case, *, file: str | None = None) -> dict[str, Any]:
 
 
 def _split_unit(key: str) -> tuple[str, str]:
-    for suffix, unit in _UNITS:
-        if key.endswith(suffix):
-            return key[: -len(suffix)].replace("_", " "), unit
-    return key.replace("_", " "), ""
+    from ..case.units import split_unit
+
+    name, unit = split_unit(key)
+    return name.replace("_", " "), unit
 
 
 def _format(value: Any) -> str:

@@ -16,10 +16,10 @@ import argparse
 import csv
 import json
 import sys
-from collections.abc import Callable, Iterator
-from contextlib import contextmanager
+from collections.abc import Callable
 from typing import Any
 
+from ..progress import fraction_bar
 from .window_options import add_window_options, case_with_options
 
 __all__ = ["register"]
@@ -75,22 +75,6 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         verb.set_defaults(run=run)
 
 
-@contextmanager
-def _progress_bar(name: str) -> Iterator[Callable[[float], None] | None]:
-    """A tqdm bar on stderr fed with fractions 0..1, or None when stderr is no terminal."""
-    if not sys.stderr.isatty():
-        yield None
-        return
-    from tqdm import tqdm
-
-    with tqdm(total=100, file=sys.stderr, unit="%", desc=name, leave=False) as bar:
-
-        def update(fraction: float) -> None:
-            bar.update(int(round(fraction * 100)) - bar.n)
-
-        yield update
-
-
 def _compute(
     args: argparse.Namespace, fn: Callable[..., dict[str, Any]], **kwargs: Any
 ) -> dict[str, Any]:
@@ -100,7 +84,7 @@ def _compute(
     case = load_case(args.case)
     try:
         case = case_with_options(case, args)
-        with _progress_bar(args.verb) as progress:
+        with fraction_bar(args.verb) as progress:
             data = fn(case, progress=progress, **kwargs)
     except InputError as err:
         if err.file is not None:
@@ -147,7 +131,7 @@ def _hms(text: str) -> str:
 
 
 def run_passes(args: argparse.Namespace) -> int:
-    from .environment_data import passes_data
+    from ..analysis.environment_data import passes_data
 
     data = _compute(args, passes_data)
     if args.json:
@@ -225,7 +209,7 @@ def _volume_lines(data: dict[str, Any]) -> list[str]:
 
 
 def run_eclipses(args: argparse.Namespace) -> int:
-    from .environment_data import eclipses_data
+    from ..analysis.environment_data import eclipses_data
 
     data = _compute(args, eclipses_data, model="cylindrical" if args.cylindrical else "conical")
     if args.json:
@@ -306,7 +290,7 @@ def _print_columns(data: dict[str, Any], as_csv: bool, digits: dict[str, int]) -
 
 
 def run_groundtrack(args: argparse.Namespace) -> int:
-    from .environment_data import groundtrack_data
+    from ..analysis.environment_data import groundtrack_data
 
     data = _compute(args, groundtrack_data)
     _print_columns(data, args.csv, {"offset_s": 3, "lat_deg": 5, "lon_deg": 5, "height_km": 3})
@@ -314,7 +298,7 @@ def run_groundtrack(args: argparse.Namespace) -> int:
 
 
 def run_ephemeris(args: argparse.Namespace) -> int:
-    from .environment_data import ephemeris_data
+    from ..analysis.environment_data import ephemeris_data
 
     data = _compute(args, ephemeris_data)
     _print_columns(data, args.csv, {"offset_s": 3})

@@ -17,10 +17,10 @@ from __future__ import annotations
 import argparse
 import json
 import math
-import sys
-from collections.abc import Callable, Iterator
-from contextlib import contextmanager
+from collections.abc import Callable
 from typing import Any
+
+from ..progress import fraction_bar
 
 __all__ = ["register", "lifetime_data", "run_lifetime"]
 
@@ -55,22 +55,6 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         help="longest span searched (default 200 orbit-averaged, 2 numerical)",
     )
     verb.set_defaults(run=run_lifetime)
-
-
-@contextmanager
-def _progress_bar(enabled: bool) -> Iterator[Callable[[float], None] | None]:
-    """A tqdm bar on stderr fed with fractions 0..1, or None when stderr is no terminal."""
-    if not enabled or not sys.stderr.isatty():
-        yield None
-        return
-    from tqdm import tqdm
-
-    with tqdm(total=100, file=sys.stderr, unit="%", desc="lifetime", leave=False) as bar:
-
-        def update(fraction: float) -> None:
-            bar.update(int(round(fraction * 100)) - bar.n)
-
-        yield update
 
 
 def lifetime_data(
@@ -216,7 +200,7 @@ def run_lifetime(args: argparse.Namespace) -> int:
         raise InputError("--max-years", args.max_years, "must be a positive number of years")
     case = load_case(args.case)
     try:
-        with _progress_bar(args.method == "numerical") as progress:
+        with fraction_bar("lifetime", args.method == "numerical") as progress:
             data = lifetime_data(
                 case, method=args.method, max_years=args.max_years, progress=progress
             )

@@ -103,10 +103,10 @@ def _write_html(path: str, case: Any, series: Any) -> None:
 
 
 def run_seasons(args: argparse.Namespace) -> int:
+    from ..analysis.environment_data import CAUTION, recorded_warnings
     from ..analysis.seasons import case_seasons, seasons_summary
     from ..case import load_case
     from ..kernel.errors import InputError
-    from .environment_data import CAUTION, recorded_warnings
     from .environment_verbs import _table
     from .window_options import case_with_options
 

@@ -5,7 +5,7 @@ One header row whose names carry their units as everywhere in orbitledger (``x_g
 ISO 8601 UTC time), then one row per sample or event. Numbers are written by ``repr`` (the
 shortest text that reads back as the same double), booleans as ``true``/``false``, so a CSV
 loses nothing. The values come from the same functions as the ``ephemeris``, ``groundtrack``,
-``passes`` and ``eclipses`` verbs (``cli.environment_data``), so the CSV and the tables agree.
+``passes`` and ``eclipses`` verbs (``analysis.environment_data``), so the CSV and the tables agree.
 """
 
 from __future__ import annotations
@@ -63,7 +63,7 @@ def rows_csv(rows: Sequence[Mapping[str, Any]], names: Sequence[str]) -> str:
 def case_csv(case: Any, what: str = "ephemeris") -> tuple[str, dict[str, Any]]:
     """CSV of ``what`` (one of ``CSV_KINDS``) over the case's window, and the data behind it
     (the verbs' JSON-ready dict, with its model notes, warnings and caution)."""
-    from ..cli import environment_data as env
+    from ..analysis import environment_data as env
 
     if what == "ephemeris":
         data = env.ephemeris_data(case)

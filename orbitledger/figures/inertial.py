@@ -27,6 +27,7 @@ from bokeh.models import CustomJS, Slider
 from ..kernel.constants import EARTH, Body
 from ..kernel.errors import InputError
 from ._inputs import labels_for
+from .own_scripts import declare_script
 from .palette import Palette, palette_for
 from .sources import FigureData, named_source, sources_of
 from .theme import add_hover, axis_label, finish_legend, new_figure, tooltip
@@ -233,6 +234,7 @@ for (const [src, isLine] of targets) {
 }
 view.data = Object.assign({}, view.data, {azimuth_deg: [az.value], elevation_deg: [el.value]});
 """
+declare_script("inertial view: re-projection by the sliders", PROJECT_JS)
 
 
 def inertial_figure(

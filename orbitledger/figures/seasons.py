@@ -17,6 +17,7 @@ from bokeh.models import BoxAnnotation, Span
 
 from ..kernel.errors import InputError
 from ..kernel.seasons import eclipse_seasons
+from ._stacked import stacked_time_figures
 from ._times import utc_ms_after
 from .palette import Palette, palette_for
 from .sources import FigureData, named_source
@@ -66,26 +67,15 @@ def beta_history_figure(
     """Beta angle over the mission with eclipse-season bands; the longest shadow per day below."""
     pal = palette_for(theme)
     data = beta_history_data(series)
-    top = new_figure(
-        title=title
+    top, bottom = stacked_time_figures(
+        title
         or f"Beta angle; shaded: days with shadow; dashed: beta* = asin(R / a) = "
         f"\u00b1{series.beta_star_deg:.1f} deg, no shadow beyond",
-        x_label=_TIME,
-        y_label=axis_label("beta angle", "deg"),
+        _TIME,
+        (axis_label("beta angle", "deg"), axis_label("longest shadow", "min")),
+        (280, 250),
         theme=pal,
         width=width,
-        height=280,
-        x_axis_type="datetime",
-    )
-    bottom = new_figure(
-        title="",
-        x_label=_TIME,
-        y_label=axis_label("longest shadow", "min"),
-        theme=pal,
-        width=width,
-        height=250,
-        x_axis_type="datetime",
-        x_range=top.x_range,
     )
     for lo, hi in zip(data["seasons"]["start"], data["seasons"]["end"], strict=True):
         for fig in (top, bottom):

@@ -20,6 +20,7 @@ from ..kernel.constants import EARTH, Body
 from ..kernel.errors import InputError
 from ..kernel.forces import ellipsoidal_height_km
 from ._inputs import as_list, get, labels_for
+from ._stacked import stacked_time_figures
 from ._times import utc_ms, utc_ms_after
 from .palette import Palette, palette_for
 from .sources import FigureData, named_source
@@ -83,24 +84,13 @@ def altitude_speed_figure(
     title = title or f"Height above the {body.name} ellipsoid and speed over the window"
     n = len(data)
     names = labels_for(labels, n, "orbit")
-    top = new_figure(
-        title=title,
-        x_label=_TIME_LABEL,
-        y_label=axis_label("height above ellipsoid", "km"),
+    top, bottom = stacked_time_figures(
+        title,
+        _TIME_LABEL,
+        (axis_label("height above ellipsoid", "km"), axis_label("speed", "km/s")),
+        (240, 240),
         theme=pal,
         width=width,
-        height=240,
-        x_axis_type="datetime",
-    )
-    bottom = new_figure(
-        title="",
-        x_label=_TIME_LABEL,
-        y_label=axis_label("speed", "km/s"),
-        theme=pal,
-        width=width,
-        height=240,
-        x_axis_type="datetime",
-        x_range=top.x_range,
     )
     rows = [
         tooltip("time", "time_utc", "UTC", "datetime"),

@@ -25,7 +25,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import elementwise
 
-__all__ = ["Intervals", "positive_intervals", "refine_maxima"]
+__all__ = ["Intervals", "positive_intervals", "refine_crossings", "refine_maxima"]
 
 ChannelFunction = Callable[[np.ndarray, np.ndarray], np.ndarray]
 
@@ -52,6 +52,28 @@ def _roots(f: ChannelFunction, lo: np.ndarray, hi: np.ndarray, ch: np.ndarray, x
         return lo.copy()
     res = elementwise.find_root(f, (lo, hi), args=(ch,), tolerances={"xatol": xatol, "xrtol": 0.0})
     return np.asarray(res.x, dtype=float)
+
+
+def refine_crossings(
+    f: ChannelFunction,
+    lo: np.ndarray,
+    hi: np.ndarray,
+    ch: np.ndarray,
+    rising: np.ndarray,
+    xatol: float,
+) -> np.ndarray:
+    """Times where f(t, ch) crosses zero inside the brackets [lo, hi]: upwards where ``rising``,
+    downwards elsewhere (f is negated on those, so every bracket runs from negative to
+    positive). Bracketing root finding (``scipy.optimize.elementwise.find_root``), to xatol s."""
+    roots = _roots(f, lo, hi, ch, xatol)
+    falling = ~rising
+    if np.any(falling):
+
+        def flipped(t: np.ndarray, c: np.ndarray) -> np.ndarray:
+            return -f(t, c)
+
+        roots[falling] = _roots(flipped, lo[falling], hi[falling], ch[falling], xatol)
+    return roots
 
 
 def refine_maxima(
@@ -101,17 +123,8 @@ def positive_intervals(
     above = values > 0.0
     flips_ch, flips_k = np.nonzero(above[:, 1:] != above[:, :-1])
     rising = ~above[flips_ch, flips_k]
-    roots = _roots(f, t_s[flips_k], t_s[flips_k + 1], flips_ch, xatol)
-    # Negate f on falling edges so every bracket runs from negative to positive.
+    roots = refine_crossings(f, t_s[flips_k], t_s[flips_k + 1], flips_ch, rising, xatol)
     falling = ~rising
-    if np.any(falling):
-
-        def flipped(t: np.ndarray, c: np.ndarray) -> np.ndarray:
-            return -f(t, c)
-
-        roots[falling] = _roots(
-            flipped, t_s[flips_k[falling]], t_s[flips_k[falling] + 1], flips_ch[falling], xatol
-        )
     starts_ch = [flips_ch[rising]]
     starts = [roots[rising]]
     ends_ch = [flips_ch[falling]]

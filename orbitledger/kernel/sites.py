@@ -37,10 +37,9 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 from numpy.typing import ArrayLike
-from scipy.optimize import elementwise
 
 from .errors import InputError
-from .events import refine_maxima
+from .events import refine_crossings, refine_maxima
 from .passes import (
     ANY_STATION,
     Pass,
@@ -207,13 +206,6 @@ class _Geometry:
         return self.el_az(t, ch)[0]
 
 
-def _root(f, lo: np.ndarray, hi: np.ndarray, ch: np.ndarray, tol: float) -> np.ndarray:
-    if lo.size == 0:
-        return lo.copy()
-    res = elementwise.find_root(f, (lo, hi), args=(ch,), tolerances={"xatol": tol, "xrtol": 0.0})
-    return np.asarray(res.x, dtype=float)
-
-
 def _under_terrain(geo: _Geometry, candidates: list[Pass], index: dict[str, int], tol: float,
                    sample_s: float) -> list[tuple[int, float, float, bool, bool]]:  # fmt: skip
     """(channel, start, end, starts clipped, ends clipped) of the intervals above the terrain
@@ -230,14 +222,7 @@ def _under_terrain(geo: _Geometry, candidates: list[Pass], index: dict[str, int]
     k = np.flatnonzero(same & (above[1:] != above[:-1]))
     rising = above[k + 1]
     ch_k = ch_pass[owner[k]]
-    roots = np.empty(k.size)
-    roots[rising] = _root(geo.margin, t[k[rising]], t[k[rising] + 1], ch_k[rising], tol)
-
-    def falling_margin(x: np.ndarray, c: np.ndarray) -> np.ndarray:
-        return -geo.margin(x, c)
-
-    fall = ~rising
-    roots[fall] = _root(falling_margin, t[k[fall]], t[k[fall] + 1], ch_k[fall], tol)
+    roots = refine_crossings(geo.margin, t[k], t[k + 1], ch_k, rising, tol)
     out = []
     bounds = np.searchsorted(owner, np.arange(lo.size + 1))
     edge_bounds = np.searchsorted(owner[k], np.arange(lo.size + 1))

@@ -90,7 +90,7 @@ def draw_samples(
     base: Any, dispersions: Mapping[str, Normal | Uniform], samples: int, seed: int
 ) -> dict[str, np.ndarray]:
     """The input columns of a Monte Carlo run: ``{path: samples values}``, drawn up front."""
-    from .sweep import check_input_path
+    from ..case.changes import check_input_path
 
     if isinstance(samples, bool) or not isinstance(samples, int | np.integer) or samples < 1:
         raise InputError("samples", samples, "must be a whole number of cases >= 1")

@@ -25,6 +25,7 @@ from typing import Any
 
 import numpy as np
 
+from ..case.units import unit_of
 from ..kernel.errors import InputError
 from .metrics import (
     GROUP_WIDTH,
@@ -115,7 +116,7 @@ def _plain(value: float, integer: bool) -> float | int:
 
 def case_changes(base: Any, row: Mapping[str, float]) -> dict[str, float | int]:
     """``{path: value}`` for ``Case.with_changes``: integer fields of the case get integers."""
-    from .sweep import check_input_path
+    from ..case.changes import check_input_path
 
     return {p: _plain(float(v), isinstance(check_input_path(base, p), int)) for p, v in row.items()}
 
@@ -123,7 +124,7 @@ def case_changes(base: Any, row: Mapping[str, float]) -> dict[str, float | int]:
 def check_extremes(base: Any, inputs: Mapping[str, np.ndarray]) -> None:
     """Validate the cases at the extremes of the inputs through the case model (CaseError
     names the path of a refused value)."""
-    from .sweep import check_input_path
+    from ..case.changes import check_input_path
 
     integers = {p: isinstance(check_input_path(base, p), int) for p in inputs}
     bounds = {p: sorted({float(np.min(v)), float(np.max(v))}) for p, v in inputs.items()}
@@ -286,7 +287,7 @@ def evaluate_cases(
             "inputs": list(columns),
             "metrics": list(selection.columns),
             "groups": list(selection.groups),
-            "units": {**{p: _path_unit(p) for p in columns}, **dict(selection.units)},
+            "units": {**{p: unit_of(p) for p in columns}, **dict(selection.units)},
             "repeat": list(selection.repeat) if selection.repeat else None,
             **dict(attrs or {}),
         }
@@ -302,7 +303,7 @@ def _chunks(
     selection: MetricSelection,
     size: int,
 ) -> list[CaseChunk]:
-    from .sweep import check_input_path
+    from ..case.changes import check_input_path
 
     paths = tuple(columns)
     integer = tuple(isinstance(check_input_path(base, p), int) for p in paths)
@@ -321,22 +322,3 @@ def _chunks(
         )
         for start in range(0, table.shape[0], size)
     ]
-
-
-def _path_unit(path: str) -> str:
-    """The unit an input's path names by its suffix (``orbit.altitude_km`` -> ``km``)."""
-    last = path.rsplit(".", 1)[-1].split("[", 1)[0]
-    for suffix, unit in (
-        ("_km_s", "km/s"),
-        ("_km", "km"),
-        ("_deg", "deg"),
-        ("_s", "s"),
-        ("_kg", "kg"),
-        ("_m2", "m^2"),
-        ("_years", "yr"),
-        ("_percent", "%"),
-        ("_arcsec", "arcsec"),
-    ):
-        if last.endswith(suffix):
-            return unit
-    return ""

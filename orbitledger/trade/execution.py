@@ -21,53 +21,15 @@ terminal), in a notebook the tqdm.auto widget; elsewhere (pipes, CI, records) th
 
 from __future__ import annotations
 
-import sys
 import uuid
 from collections.abc import Callable, Iterator, Sequence
 from contextlib import contextmanager
 from typing import Any
 
 from ..kernel.errors import InputError
+from ..progress import in_notebook, progress_bar
 
 __all__ = ["DaskRunner", "LocalRunner", "in_notebook", "progress_bar", "runner"]
-
-
-def in_notebook() -> bool:
-    """Whether this code runs in a Jupyter kernel (ipykernel's shell)."""
-    shell_module = sys.modules.get("IPython")
-    if shell_module is None:
-        return False
-    try:
-        shell = shell_module.get_ipython()  # type: ignore[attr-defined]
-    except AttributeError:
-        return False
-    return shell is not None and hasattr(shell, "kernel")
-
-
-class _NoBar:
-    def update(self, n: int) -> None:
-        pass
-
-    def close(self) -> None:
-        pass
-
-
-def progress_bar(total: int, desc: str, enabled: bool | None = None) -> Any:
-    """A bar counting ``total`` cases: tqdm.auto in a notebook, tqdm on a terminal's stderr.
-
-    ``enabled``: None decides by the surroundings, True forces a bar (on stderr outside a
-    notebook), False gives none.
-    """
-    notebook = in_notebook()
-    if enabled is False or (enabled is None and not (notebook or sys.stderr.isatty())):
-        return _NoBar()
-    if notebook:
-        from tqdm.auto import tqdm as auto_tqdm
-
-        return auto_tqdm(total=total, desc=desc, unit="case")
-    from tqdm import tqdm
-
-    return tqdm(total=total, desc=desc, unit="case", file=sys.stderr, leave=False)
 
 
 class LocalRunner:

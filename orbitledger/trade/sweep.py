@@ -19,6 +19,7 @@ from typing import Any
 
 import numpy as np
 
+from ..case.changes import check_input_path
 from ..kernel.errors import InputError
 
 __all__ = [
@@ -35,16 +36,6 @@ __all__ = [
 
 STOP_TOLERANCE = 1e-6
 """Fraction of the step within which ``stop`` counts as on the grid."""
-
-# Either-or pairs of the case file: a path that is null in the base case is still an input
-# when its partner is set (``with_changes`` sets one and clears the other).
-_PARTNERS = {
-    "a_km": "altitude_km",
-    "altitude_km": "a_km",
-    "nu_deg": "mean_anomaly_deg",
-    "mean_anomaly_deg": "nu_deg",
-}
-
 
 def _finite(field: str, value: Any) -> float:
     try:
@@ -128,36 +119,6 @@ def parse_vary(text: str) -> tuple[str, np.ndarray]:
     if not sep or not path.strip():
         raise InputError("--vary", text, "write PATH=START:STOP:STEP or PATH=v1,v2,...")
     return path.strip(), parse_values(values, field=path.strip())
-
-
-def check_input_path(base: Any, path: str) -> Any:
-    """The base case's value at ``path``; refuses a path not in the case or not a number.
-
-    A path that is null in the base case is accepted when its either-or partner is set
-    (``orbit.a_km`` in a case given by ``orbit.altitude_km``): changing it replaces the partner.
-    """
-    from ..case.changes import parse_path
-
-    tokens = parse_path(path)
-    node: Any = base.to_data()
-    for depth, token in enumerate(tokens):
-        last = depth == len(tokens) - 1
-        if isinstance(node, list) and isinstance(token, int) and 0 <= token < len(node):
-            node = node[token]
-        elif isinstance(node, dict) and isinstance(token, str) and token in node:
-            parent, node = node, node[token]
-            if node is None and last and token in _PARTNERS:
-                if parent.get(_PARTNERS[token]) is not None:
-                    return None
-            if node is None:
-                raise InputError(path, None, "is not set in the base case: nothing to vary")
-        else:
-            known = ", ".join(sorted(node)) if isinstance(node, dict) else ""
-            hint = f" (fields here: {known})" if known else ""
-            raise InputError(path, InputError.MISSING, f"is not an input of the case{hint}")  # type: ignore[attr-defined]
-    if isinstance(node, bool) or not isinstance(node, int | float):
-        raise InputError(path, node, "is not a numeric input of the case")
-    return node
 
 
 def sweep_axes(base: Any, vary: Mapping[str, Any]) -> dict[str, np.ndarray]:

@@ -11,10 +11,10 @@ from __future__ import annotations
 
 import json
 import os
-import tempfile
 from pathlib import Path
 from typing import Any
 
+from ..case.io import atomic_write, atomic_write_text
 from ..kernel.errors import InputError
 
 __all__ = ["TABLE_SUFFIXES", "check_table_path", "load_table", "save_table"]
@@ -35,20 +35,6 @@ def check_table_path(path: str | os.PathLike, *, field: str = "--out") -> Path:
     return out
 
 
-def _replace_atomically(path: Path, write) -> None:
-    handle, temporary = tempfile.mkstemp(dir=path.parent or ".", prefix=f".{path.name}.")
-    os.close(handle)
-    try:
-        write(temporary)
-        with open(temporary, "rb") as stream:
-            os.fsync(stream.fileno())
-        os.replace(temporary, path)
-    except BaseException:
-        if os.path.exists(temporary):
-            os.unlink(temporary)
-        raise
-
-
 def _json_attrs(attrs: dict[str, Any]) -> str:
     return json.dumps(attrs, indent=1, sort_keys=True, default=float)
 
@@ -57,12 +43,12 @@ def save_table(frame: Any, path: str | os.PathLike) -> Path:
     """Write ``frame`` (and its attrs) to ``path`` (.csv or .parquet), atomically."""
     out = check_table_path(path, field="path")
     if out.suffix.lower() == ".parquet":
-        _replace_atomically(out, lambda name: frame.to_parquet(name, index=False))
+        atomic_write(out, lambda stream: frame.to_parquet(stream, index=False))
     else:
         side = out.with_name(out.name + ".attrs.json")
-        _replace_atomically(out, lambda name: frame.to_csv(name, index=False))
+        atomic_write(out, lambda stream: frame.to_csv(stream, index=False))
         text = _json_attrs(dict(frame.attrs))
-        _replace_atomically(side, lambda name: Path(name).write_text(text, encoding="utf-8"))
+        atomic_write_text(side, text)
     return out
 
 

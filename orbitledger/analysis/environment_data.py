@@ -57,8 +57,8 @@ def case_trajectory(case: Any, progress: Callable[[float], None] | None = None):
     """The kernel ``Trajectory`` of a case over its analysis window (``analysis.inputs``),
     refused for a central body other than the Earth (these analyses need the Earth's
     rotation, shape and shadow)."""
-    from ..analysis.inputs import case_trajectory as shared_case_trajectory
     from ..kernel.errors import InputError
+    from .inputs import case_trajectory as shared_case_trajectory
 
     body = case.body_constants()
     if body.name.lower() != "earth":
@@ -69,8 +69,8 @@ def case_trajectory(case: Any, progress: Callable[[float], None] | None = None):
 
 
 def _header(case: Any, traj: Any, kind: str) -> dict[str, Any]:
-    from ..analysis.earth_orientation import earth_orientation_summary
     from ..kernel.timescales import utc_iso
+    from .earth_orientation import earth_orientation_summary
 
     return {
         "analysis": kind,
@@ -93,9 +93,9 @@ def _header(case: Any, traj: Any, kind: str) -> dict[str, Any]:
 
 def passes_data(case: Any, progress: Callable[[float], None] | None = None) -> dict[str, Any]:
     """Every pass over the case's stations in its window, with daily statistics."""
-    from ..analysis.contacts import case_site_passes, has_downlink
-    from ..analysis.inputs import case_stations
     from ..kernel.errors import InputError
+    from .contacts import case_site_passes, has_downlink
+    from .inputs import case_stations
 
     if not case.stations:
         raise InputError("stations", [], "the case has no stations: add one to compute passes")
