@@ -33,7 +33,6 @@ __all__ = [
     "PdfPrinter",
     "chromium",
     "find_browser",
-    "info_entries",
     "print_record_pdf",
 ]
 
@@ -214,26 +213,11 @@ class PdfPrinter:
         self._jobs.put(None)
 
 
-def info_entries(record: dict[str, Any]) -> dict[str, str]:
-    """The document information the build writes (``verify_pdf`` expects exactly these)."""
-    rev = record.get("revision")
-    label = str(rev) if rev is not None else "unrecorded"
-    return {
-        "/Title": f"{record.get('title')} ({record.get('record_id')} rev {label})",
-        "/Subject": "orbitledger calculation record",
-        "/Author": (record.get("prepared") or {}).get("name", ""),
-        "/Keywords": f"record_id={record.get('record_id')}; revision={label}; status={record.get('status')}",
-        "/OrbitLedgerRecordId": str(record.get("record_id")),
-        "/OrbitLedgerRevision": label,
-        "/Creator": f"orbitledger {(record.get('environment') or {}).get('orbitledger', '')}",
-    }
-
-
 def attach(pdf: bytes, record: dict[str, Any], notebook: bytes) -> bytes:
     """The PDF with metadata and attachments: record JSON, executed notebook, case files."""
     from pypdf import PdfWriter
 
-    from .verify_pdf import PAGES_ATTACHMENT, page_digests
+    from .verify_pdf import PAGES_ATTACHMENT, info_entries, page_digests
 
     # Chromium's PDFs make pypdf warn about the trailer's object count: harmless, not for users.
     logging.getLogger("pypdf").setLevel(logging.ERROR)

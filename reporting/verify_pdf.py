@@ -8,7 +8,7 @@ the kinds of its annotations). ``check_pdf(report, record, data, attachments)`` 
 
 - attachments: exactly those the build writes (the record's own, the notebook, one per case,
   ``pages.json``); nothing added;
-- metadata: the document information is what the build wrote (``render_pdf.info_entries``:
+- metadata: the document information is what the build wrote (``info_entries``, written by ``render_pdf``:
   record id, revision, title, status, author, creator), nothing added but dates and producer;
 - revisions: every incremental update after the build's is a signature revision that pyhanko
   reads as one (``PdfFileReader.embedded_signatures``, each covering its whole revision), that
@@ -34,7 +34,7 @@ from typing import Any
 
 from .record import canonical_dumps
 
-__all__ = ["PAGES_ATTACHMENT", "check_pdf", "page_digests"]
+__all__ = ["PAGES_ATTACHMENT", "check_pdf", "info_entries", "page_digests"]
 
 PAGES_ATTACHMENT = "pages.json"
 # Schema /2: the digests of /1 were all of empty data (a decoded content stream tests falsy).
@@ -107,7 +107,6 @@ _INFO_FREE = {"/Producer", "/CreationDate", "/ModDate"}
 
 
 def _check_metadata(report: Any, record: dict[str, Any], reader: Any) -> None:
-    from .render_pdf import info_entries
 
     info = reader.metadata or {}
     expected = info_entries(record)
@@ -335,3 +334,18 @@ def check_pdf(
     texts = [p.extract_text() or "" for p in reader.pages]
     _check_pages(report, record, reader, attachments.get(PAGES_ATTACHMENT), texts)
     _check_text(report, record, texts)
+
+
+def info_entries(record: dict[str, Any]) -> dict[str, str]:
+    """The document information the build writes (``render_pdf.attach``) and verify expects."""
+    rev = record.get("revision")
+    label = str(rev) if rev is not None else "unrecorded"
+    return {
+        "/Title": f"{record.get('title')} ({record.get('record_id')} rev {label})",
+        "/Subject": "orbitledger calculation record",
+        "/Author": (record.get("prepared") or {}).get("name", ""),
+        "/Keywords": f"record_id={record.get('record_id')}; revision={label}; status={record.get('status')}",
+        "/OrbitLedgerRecordId": str(record.get("record_id")),
+        "/OrbitLedgerRevision": label,
+        "/Creator": f"orbitledger {(record.get('environment') or {}).get('orbitledger', '')}",
+    }
