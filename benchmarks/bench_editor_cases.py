@@ -36,9 +36,9 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from _timing import median_p90_s, min_times_s  # noqa: E402
+from orbitledger.widgets import CaseEditor  # noqa: E402
 
 import orbitledger  # noqa: E402
-from orbitledger.widgets import CaseEditor  # noqa: E402
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 DAY_S = 86400.0
