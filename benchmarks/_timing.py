@@ -42,3 +42,14 @@ def report_ratios(
             line += f"  (target <= {targets[name]:g} x: {'met' if met else 'MISSED'})"
         print(line)
     return ok
+
+
+def median_p90_s(samples: list[float]) -> tuple[float, float]:
+    """Median and 90th percentile (nearest rank) of ``samples`` (seconds)."""
+    ordered = sorted(samples)
+    if not ordered:
+        return float("nan"), float("nan")
+    mid = len(ordered) // 2
+    median = ordered[mid] if len(ordered) % 2 else 0.5 * (ordered[mid - 1] + ordered[mid])
+    rank = max(0, min(len(ordered) - 1, -(-9 * len(ordered) // 10) - 1))
+    return median, ordered[rank]

@@ -98,18 +98,19 @@ class BackgroundJob:
 
     def _show_run_button(self) -> None:
         """Run shows whenever running again is the way on: not while a run goes, and for a job
-        the editor starts itself only after a cancel or a failure."""
-        wanted = self.state != "running" and (
-            not self.auto or self.state in ("cancelled", "failed")
-        )
+        the editor starts itself only after a cancel or a failure. Cancel and the bar show
+        only while a run goes: a finished or cancelled job is back in its idle look."""
+        running = self.state == "running"
+        wanted = not running and (not self.auto or self.state in ("cancelled", "failed"))
         self.run_button.layout.display = None if wanted else "none"
+        self.cancel_button.layout.display = None if running else "none"
+        self.bar.layout.visibility = "visible" if running else "hidden"
 
     def show_idle(self, text: str) -> None:
         """No run is needed (what the job computes is there already): say so in the status."""
         if self.running:
             return
         self.state = "idle"
-        self.bar.layout.visibility = "hidden"
         self.status.value = _escape(text)
         self._show_run_button()
 
@@ -130,7 +131,6 @@ class BackgroundJob:
         self.state, self.result, self.error = "running", None, None
         self.bar.value = 0.0
         self.bar.bar_style = ""
-        self.bar.layout.visibility = "visible"
         self.cancel_button.disabled = False
         self.status.value = "starting\u2026"
         self._show_run_button()
@@ -151,6 +151,8 @@ class BackgroundJob:
         self._finished.set()  # the stopped thread no longer counts as the current run
         if quiet:
             self.state = "idle"
+            self.cancel_button.disabled = True
+            self._show_run_button()
             return
         self._finish("cancelled", None)
 

@@ -26,10 +26,9 @@ from orbitledger.analysis import budget_for_case
 from orbitledger.analysis import case_trajectory as analysis_trajectory
 from orbitledger.kernel.eclipses import shadow_state
 from orbitledger.kernel.groundtrack import ground_track
-from orbitledger.kernel.propagation import Trajectory
-from orbitledger.kernel.sun import sun_position_gcrf_km
 
 from .inputkeys import CACHE, FIGURE_NEEDS
+from .windowcache import remembering, sun_positions_km
 
 __all__ = [
     "CASE_FIGURES",
@@ -74,83 +73,12 @@ def window_offsets_s(case: Any) -> np.ndarray:
     return window.step_s * np.arange(n)
 
 
-@dataclass(frozen=True, eq=False)
-class _RememberingTrajectory(Trajectory):
-    """A trajectory that remembers its last evaluations at arrays of offsets: the ground
-    track, its time tags and the shadow flags all read the same epochs, so the propagation
-    and the time-scale conversion (leap-second look-ups per epoch) run once per edit."""
-
-    def _memo(self, key: str, t: Any, compute: Callable[[], Any]) -> Any:
-        # Keyed by the offsets array itself (kept, so its id is not reused): the Sun's coarse
-        # nodes in between do not push out the window's epochs.
-        memo = self.__dict__.setdefault("_last", {})
-        hit = memo.get((key, id(t)))
-        if hit is not None and hit[0] is t:
-            return hit[1]
-        value = compute()
-        memo[(key, id(t))] = (t, value)
-        while len(memo) > 4:
-            del memo[next(iter(memo))]
-        return value
-
-    def times(self, offset_s: Any) -> Any:
-        return self._memo(
-            "times",
-            offset_s,
-            lambda: _same_window(self, "times", offset_s, lambda: Trajectory.times(self, offset_s)),
-        )
-
-    def gcrf(self, offset_s: Any) -> tuple[np.ndarray, np.ndarray]:
-        return self._memo("gcrf", offset_s, lambda: Trajectory.gcrf(self, offset_s))
-
-
-def _remembering(traj: Any) -> Any:
-    return _RememberingTrajectory(
-        **{f.name: getattr(traj, f.name) for f in dataclasses.fields(traj)}
-    )
-
-
-# The Sun moves about 1 deg a day along the ecliptic, so its position sampled every 30 min and
-# interpolated linearly is off by under a kilometre at 1 au (the chord's sagitta, R theta^2/8,
-# theta = 2.2e-4 rad): nothing at the scale of the Earth's shadow (common practice).
-_SUN_NODE_S = 1800.0
-
-
-def _sun_positions_km(traj: Any, t: np.ndarray) -> np.ndarray:
-    def compute() -> np.ndarray:
-        nodes = np.arange(0.0, float(t[-1]) + _SUN_NODE_S, _SUN_NODE_S)
-        at_nodes = sun_position_gcrf_km(traj.times(nodes)).reshape(-1, 3)
-        return np.stack([np.interp(t, nodes, at_nodes[:, k]) for k in range(3)], axis=-1)
-
-    return _same_window(traj, "sun", t, compute)
-
-
-_windows: dict[tuple, tuple[np.ndarray, Any]] = {}
-
-
-def _same_window(traj: Any, what: str, t: np.ndarray, compute: Callable[[], Any]) -> Any:
-    """``compute()``, shared by the cases whose window is the same: same start (TAI), dUT1 and
-    sample times. The epochs' time scales and the Sun's positions depend on nothing else, so
-    an edit of the orbit reuses them; the last few windows are kept."""
-    t = np.asarray(t, dtype=float)
-    start = traj.start
-    key = (what, float(start.tai1), float(start.tai2), traj.eop.dut1_s, t.shape, hash(t.tobytes()))
-    hit = _windows.get(key)
-    if hit is not None and np.array_equal(hit[0], t):
-        return hit[1]
-    value = compute()
-    _windows[key] = (t.copy(), value)
-    while len(_windows) > 8:
-        del _windows[next(iter(_windows))]
-    return value
-
-
 def _window_inputs(case: Any) -> tuple[Any, np.ndarray]:
     """The case's remembering trajectory and the window's sample times (one pair per case)."""
     return _cached(
         case,
         "window-inputs",
-        lambda c: (_remembering(case_trajectory(c)), np.asarray(window_offsets_s(c), dtype=float)),
+        lambda c: (remembering(case_trajectory(c)), np.asarray(window_offsets_s(c), dtype=float)),
     )
 
 
@@ -161,7 +89,7 @@ def case_track(case: Any) -> Any:
         traj, t = _window_inputs(c)
         track = ground_track(traj, t)
         r, _v = traj.gcrf(t)
-        shadow = shadow_state(r, _sun_positions_km(traj, t), "conical", traj.body) > 0
+        shadow = shadow_state(r, sun_positions_km(traj, t), "conical", traj.body) > 0
         return dataclasses.replace(track, in_eclipse=shadow)
 
     return _cached(case, "track", compute)

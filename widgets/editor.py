@@ -106,6 +106,7 @@ class CaseEditor(EditorSnapshot, EditorForm):
         self._results: dict[str, Any] = {}
         self._slow_results: dict[str, Any] = {}
         self._job_needed = False
+        self._failed_groups: list[str] = []  # the background groups that did not apply
         self._panel_lock = threading.Lock()
         self.timings: dict[str, float] = {}
         self.add_class("ol-editor")
@@ -251,6 +252,7 @@ class CaseEditor(EditorSnapshot, EditorForm):
             prime(case, now)  # the figures' kernel work: ephemeris, ground track
         t1 = time.perf_counter()
         self._slow_results, failed, missing = pipeline.cached_background_results(case)
+        self._failed_groups = failed
         waiting = [
             f
             for f in self._figures
@@ -289,6 +291,8 @@ class CaseEditor(EditorSnapshot, EditorForm):
         ``window_results=False``; after Cancel, an edit or this method runs them again."""
         self._slow_job.start()
         self._show_results()
+        if self._slow_job.state != "running":  # it finished meanwhile: show how it ended
+            self._show_results(self._failed_groups)
 
     def _window_job(self, progress: Progress) -> dict[str, Any]:
         return self._slow_groups(list(pipeline.BACKGROUND_GROUPS), progress, self._generation)
@@ -331,14 +335,17 @@ class CaseEditor(EditorSnapshot, EditorForm):
         self.timings["background_s"] = time.perf_counter() - t0
         if current():
             self._job_needed = False
+            self._failed_groups = list(failed)
             self._show_results(failed)
         return out
 
     def _window_job_done(self, job: Any) -> None:
+        """The job ended (done, cancelled or failed): the panel shows that end, never the
+        "on the way" note of the run (which a fast run could otherwise leave behind)."""
         if job.state in ("cancelled", "failed"):
             for figure in self._figures:
                 figure.mark_waiting(done=False)
-            self._show_results()
+        self._show_results(self._failed_groups if job.state == "done" else [])
 
     # -- typed edits ------------------------------------------------------------------------
     def _field_edited(self, field: Field) -> None:

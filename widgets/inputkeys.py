@@ -92,27 +92,41 @@ _data_lock = threading.Lock()
 _data: OrderedDict[int, tuple[Any, dict]] = OrderedDict()
 
 
-def _case_data(case: Any) -> dict:
-    """``case.to_data()``, once per case object (the last few kept; the case is kept with its
-    data, so that its id is not reused meanwhile)."""
+def _case_entry(case: Any) -> tuple[Any, dict, dict]:
+    """(case, ``case.to_data()``, memo of keys), once per case object (the last few kept; the
+    case is kept with its data, so that its id is not reused meanwhile)."""
     with _data_lock:
         hit = _data.get(id(case))
         if hit is not None and hit[0] is case:
-            return hit[1]
-    data = case.to_data()
+            return hit
+    entry = (case, case.to_data(), {})
     with _data_lock:
-        _data[id(case)] = (case, data)
+        _data[id(case)] = entry
         while len(_data) > 8:
             _data.popitem(last=False)
-    return data
+    return entry
+
+
+def _case_data(case: Any) -> dict:
+    return _case_entry(case)[1]
 
 
 def inputs_key(case: Any, what: str) -> str:
     """The key of computation ``what`` (a name of :data:`IGNORED`) for ``case``: the
-    canonical JSON of the case's sections it reads."""
-    ignored = IGNORED[what]
-    data = _case_data(case)
-    return what + ":" + canonical_json({k: v for k, v in data.items() if k not in ignored})
+    canonical JSON of each section of the case it reads, in the order of their names. Each
+    section's text is made once per case and each key once per case and item (an edit asks
+    for some twenty keys)."""
+    _case, data, memo = _case_entry(case)
+    key = memo.get(what)
+    if key is None:
+        sections = memo.get(None)
+        if sections is None:
+            sections = memo[None] = {k: canonical_json(v) for k, v in data.items()}
+        ignored = IGNORED[what]
+        parts = [f"{k}={text}" for k, text in sorted(sections.items()) if k not in ignored]
+        key = what + ":" + "\x1e".join(parts)
+        memo[what] = key
+    return key
 
 
 def figure_key(name: str, case: Any) -> str | None:

@@ -6,7 +6,8 @@ contacts and the ground track's stations.
 
 - At once (each a millisecond or so): the orbit results (``orbit``, ``j2``) and the figures
   drawn from a conic; with an analytic propagator (two-body, J2 mean elements, SGP4) also the
-  trajectory over the window and its figures.
+  trajectory over the window and its figures, up to ``FAST_WINDOW_EPOCHS`` epochs (a longer
+  window's trajectory and figures go to the background).
 - In the background, with the progress bar and Cancel: the delta-v budget (its disposal search
   integrates the decay many times) and its chart, the numerical propagation over the window
   and its figures, the eclipses, the station contacts and the lifetime.
@@ -40,10 +41,22 @@ FAST = tuple(analysis.FAST_GROUPS)
 BACKGROUND_GROUPS = ("budget", *(g for g in analysis.ALL_GROUPS if g not in (*FAST, "budget")))
 
 
+# Epochs over the window above which even an analytic trajectory, its ground track and their
+# figures go to the background: one day at 10 s is 8 641 epochs (about 20 ms of kernel work);
+# a 30-day window at 10 s, 259 201 epochs, would hold the form for a second.
+FAST_WINDOW_EPOCHS = 20_000
+
+
+def window_epochs(case: Any) -> int:
+    """Sample times of the analysis window: 0, step, ..., duration."""
+    return int(case.window.duration_s / case.window.step_s + 1e-9) + 1
+
+
 def heavy_window(case: Any) -> bool:
     """True when the trajectory over the window is a numerical integration (seconds for a
-    day or more), so its figures wait for the background job."""
-    return case.force_model.propagator == "numerical"
+    day or more) or has more than ``FAST_WINDOW_EPOCHS`` epochs, so its figures wait for the
+    background job."""
+    return case.force_model.propagator == "numerical" or window_epochs(case) > FAST_WINDOW_EPOCHS
 
 
 def background_needs(case: Any) -> set[str]:

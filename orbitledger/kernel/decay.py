@@ -140,7 +140,8 @@ def _rotation(s: _Setup, a: np.ndarray, e: np.ndarray) -> np.ndarray:
 
 
 def _eccentricity(a: np.ndarray, q: np.ndarray) -> np.ndarray:
-    return np.clip(1.0 - q / a, 0.0, 0.999)
+    # np.clip's values, without its dispatch overhead (called for every rate evaluation)
+    return np.minimum(np.maximum(1.0 - q / a, 0.0), 0.999)
 
 
 def _rates(s: _Setup, a: np.ndarray, y: np.ndarray) -> np.ndarray:
