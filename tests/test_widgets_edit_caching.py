@@ -164,3 +164,21 @@ def test_a_long_window_draws_its_track_in_the_background(tmp_path: Path):
     assert not track.waiting
     drawn = casefigures.case_track(editor.case)
     assert drawn.offset_s[-1] == three_days and drawn.offset_s.size == 25_921
+
+
+def test_imaging_sections_are_not_inputs_of_the_orbit_or_the_budget(starter):
+    # Common practice (the access geometry reads the trajectory, never the other way round):
+    # targets, the sensor and a coverage region change no trajectory, budget or lifetime.
+    data = starter.to_data()
+    plain = _Data(dict(data))
+    imaging = _Data({
+        **data,
+        "targets": [{"name": "Brackwater Delta", "lat_deg": 52.1, "lon_deg": 4.3}],
+        "sensor": {"off_nadir_max_deg": 30.0},
+    })  # fmt: skip
+    for group in ("orbit", "trajectory", "eclipses", "contacts", "lifetime", "budget"):
+        assert inputs_key(plain, group) == inputs_key(imaging, group), group
+    # The density model the NRLMSIS work added is an input of the budget and the lifetime.
+    exponential = starter.with_changes({"force_model.density_model": "exponential"})
+    assert inputs_key(starter, "budget") != inputs_key(exponential, "budget")
+    assert inputs_key(starter, "lifetime") != inputs_key(exponential, "lifetime")

@@ -16,7 +16,10 @@ The lists follow what the code of ``orbitledger.analysis`` reads from a case:
 - the lifetime: not the window, the stations or the burn plan;
 - the delta-v budget: not the window or the stations (the burn plan is flown from the epoch);
 - the Earth orientation values: the epoch, the window and the table named, not the stations,
-  the burn plan or the budget.
+  the burn plan or the budget;
+- none of them reads the imaging sections (``targets``, ``sensor``, ``coverage``): only the
+  targets group does, and the editor does not show it (the record and ``orbitledger targets``
+  do).
 """
 
 from __future__ import annotations
@@ -40,17 +43,18 @@ __all__ = [
 ]
 
 # Sections of the case's data that a computation does not read (see the module docstring).
+_IMAGING = frozenset({"targets", "sensor", "coverage"})  # read only by the targets group
 _UNREAD: dict[str, frozenset[str]] = {
-    "orbit": frozenset({"meta", "stations", "window", "burns", "budget"}),
-    "j2": frozenset({"meta", "stations", "window", "burns", "budget"}),
-    "trajectory": frozenset({"meta", "stations", "burns", "budget"}),
-    "eclipses": frozenset({"meta", "stations", "burns", "budget"}),
-    "contacts": frozenset({"meta", "burns", "budget"}),
-    "lifetime": frozenset({"meta", "stations", "window", "burns"}),
-    "budget": frozenset({"meta", "stations", "window"}),
-    "one-orbit": frozenset({"meta", "stations", "burns", "budget"}),
+    "orbit": frozenset({"meta", "stations", "window", "burns", "budget"}) | _IMAGING,
+    "j2": frozenset({"meta", "stations", "window", "burns", "budget"}) | _IMAGING,
+    "trajectory": frozenset({"meta", "stations", "burns", "budget"}) | _IMAGING,
+    "eclipses": frozenset({"meta", "stations", "burns", "budget"}) | _IMAGING,
+    "contacts": frozenset({"meta", "burns", "budget"}) | _IMAGING,
+    "lifetime": frozenset({"meta", "stations", "window", "burns"}) | _IMAGING,
+    "budget": frozenset({"meta", "stations", "window"}) | _IMAGING,
+    "one-orbit": frozenset({"meta", "stations", "burns", "budget"}) | _IMAGING,
     # the IERS values used: read at the epoch and over the window
-    "earth_orientation": frozenset({"meta", "stations", "burns", "budget"}),
+    "earth_orientation": frozenset({"meta", "stations", "burns", "budget"}) | _IMAGING,
 }
 
 
