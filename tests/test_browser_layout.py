@@ -24,8 +24,8 @@ pytestmark = [pytest.mark.browser, pytest.mark.slow]
 _CLIPPED = "e => e.scrollWidth > e.clientWidth + 1"
 
 
-def test_cartesian_values_units_and_table_columns_are_readable(tmp_path: Path) -> None:
-    with editor_page("lab", "lab/tree/starter-editor.ipynb", tmp_path) as (page, editor, path):
+def test_cartesian_values_units_and_table_columns_are_readable(tmp_path: Path, jupyter_editor) -> None:
+    with editor_page("lab", "lab/tree/starter-editor.ipynb", tmp_path, jupyter_editor) as (page, editor, path):
         editor.locator(".ol-section select").first.select_option(label="Cartesian state (GCRF)")
         vz = editor.get_by_label("z", exact=True).last  # the velocity's z component
         editor.get_by_label("Velocity v x", exact=True).wait_for(timeout=20_000)
