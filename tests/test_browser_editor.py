@@ -142,8 +142,15 @@ def test_dark_theme_and_cancel_in_the_browser(app: str, path: str, tmp_path: Pat
         duration.press("Enter")
         _wait_for(lambda: load_case(case_file).window.duration_s == 2592000.0, 30, "the window")
         editor.get_by_label("Propagator", exact=True).select_option("numerical")
+        # The numerical case saved first: until then the Cancel button may belong to the
+        # 30-day two-body run, which the propagator's edit then supersedes.
+        _wait_for(
+            lambda: load_case(case_file).force_model.propagator == "numerical", 30, "the propagator"
+        )
         cancel = editor.locator(".ol-job button", has_text="Cancel").first
-        _wait_for(lambda: cancel.is_enabled(), 30, "the background run")
+        _wait_for(
+            lambda: cancel.is_visible() and cancel.is_enabled(), 30, "the numerical run"
+        )
         cancel.click()
         status = editor.locator(".ol-job .ol-note").last
         _wait_for(lambda: "cancelled" in status.inner_text(), 10, "the cancelled state")
