@@ -9,7 +9,8 @@ record (``record.json``), then checks:
 - the inputs, results and notebook fingerprints, recomputed from the embedded data;
 - each figure drawn in the HTML against its fingerprint; each PDF attachment against the record;
 - every standard result, recomputed from the embedded inputs with
-  ``orbitledger.analysis.case_results`` and compared within the tolerance the record states.
+  ``orbitledger.analysis.case_results`` and compared within the tolerance this orbitledger sets
+  for it (never one the file states: ``verify_results``).
 
 The signatures (sign-offs, PDF signatures, the detached ``.sig.json`` beside, and with a
 trust list who issued each certificate) are checked by ``verify_signatures``.
