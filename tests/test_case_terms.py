@@ -147,6 +147,17 @@ def test_a_path_with_a_newline_is_shown_escaped_on_one_line(tmp_path, capsys):
     assert "two\\nlines.case.json" in err
 
 
+def test_summary_shows_a_path_with_a_newline_on_its_one_line(tmp_path, capsys):
+    from orbitledger.case import open_case
+
+    path = tmp_path / "two\nlines.case.json"
+    open_case(path, create=True)
+    assert main(["summary", str(path)]) == 0
+    out, _ = capsys.readouterr()
+    (line,) = [x for x in out.splitlines() if x.startswith("file ")]
+    assert line.endswith("two\\nlines.case.json")
+
+
 def test_one_line_escapes_controls_and_bidi_and_keeps_plain_text():
     assert one_line("plain text, 540 km") == "plain text, 540 km"
     assert one_line("a\nb\x1b[0m\u202e") == "a\\nb\\x1b[0m\\u202e"

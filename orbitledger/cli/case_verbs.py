@@ -12,6 +12,8 @@ import math
 from collections.abc import Mapping
 from typing import Any
 
+from .one_line import one_line
+
 __all__ = ["register", "summary_data", "summary_table"]
 
 CAUTION = (
@@ -181,7 +183,7 @@ def summary_table(data: Mapping[str, Any]) -> str:
     rows: list[tuple[str, str, str]] = []
     head = [
         f"case         {data['record_id']}: {data['title']}",
-        f"file         {data['file']}",
+        f"file         {one_line(str(data['file']))}",  # a newline in a path stays one line
         f"fingerprint  {data['fingerprint']}",
         f"epoch        {data['epoch_utc']} (UTC)",
         f"body         {body['name']}: mu {_format(body['mu_km3_s2'])} km^3/s^2, "
