@@ -36,6 +36,10 @@ EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 NOTEBOOK = "kestrel2-orbit-study.ipynb"
 CHROMIUM = shutil.which("chromium") or "/usr/bin/chromium"
 R_EQ_KM = 6378.137  # WGS-84 (NIMA TR8350.2, Table 3.1)
+# The committed build of our JupyterLab plugin (labextension/): a wheel install puts it under
+# sys.prefix/share/jupyter/labextensions; an editable install does not copy data files, so the
+# test server is pointed at the build in the source tree instead.
+PREBUILT = Path(__file__).resolve().parents[1] / "labextension" / "prebuilt"
 
 
 def _free_port() -> int:
@@ -73,6 +77,9 @@ class Server:
         if os.geteuid() == 0:
             log.warning("running as root: the Jupyter server is started with --allow-root")
             extra.append("--allow-root")
+        installed = Path(sys.prefix, "share", "jupyter", "labextensions", "@orbitledger")
+        if not installed.is_dir():
+            extra.append(f"--LabServerApp.extra_labextensions_path={PREBUILT}")
         _settings(home / "settings")
         self.log_path = home / f"{app}.log"
         self._log = open(self.log_path, "wb")  # noqa: SIM115 - closed in stop()
