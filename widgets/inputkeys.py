@@ -18,8 +18,8 @@ The lists follow what the code of ``orbitledger.analysis`` reads from a case:
 - the Earth orientation values: the epoch, the window and the table named, not the stations,
   the burn plan or the budget;
 - none of them reads the imaging sections (``targets``, ``sensor``, ``coverage``): only the
-  targets group does, and the editor does not show it (the record and ``orbitledger targets``
-  do).
+  targets group does, which reads the trajectory's inputs and those, not the stations, the
+  burn plan or the budget.
 """
 
 from __future__ import annotations
@@ -44,6 +44,7 @@ __all__ = [
 
 # Sections of the case's data that a computation does not read (see the module docstring).
 _IMAGING = frozenset({"targets", "sensor", "coverage"})  # read only by the targets group
+_NOT_READ_BY_TARGETS = frozenset({"meta", "stations", "burns", "budget"})
 _UNREAD: dict[str, frozenset[str]] = {
     "orbit": frozenset({"meta", "stations", "window", "burns", "budget"}) | _IMAGING,
     "j2": frozenset({"meta", "stations", "window", "burns", "budget"}) | _IMAGING,
@@ -55,6 +56,7 @@ _UNREAD: dict[str, frozenset[str]] = {
     "one-orbit": frozenset({"meta", "stations", "burns", "budget"}) | _IMAGING,
     # the IERS values used: read at the epoch and over the window
     "earth_orientation": frozenset({"meta", "stations", "burns", "budget"}) | _IMAGING,
+    "targets": _NOT_READ_BY_TARGETS,
 }
 
 

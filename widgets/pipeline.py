@@ -22,7 +22,7 @@ from collections.abc import Callable
 from typing import Any
 
 from orbitledger import analysis
-from orbitledger.analysis import window_groups
+from orbitledger.analysis import imaging, window_groups
 
 from .casefigures import budget_report, case_trajectory
 from .inputkeys import CACHE
@@ -84,10 +84,10 @@ def _budget_group(case: Any) -> dict[str, Any]:
     return {r.name: r for r in rows}
 
 
-def _window_group(name: str) -> Callable[[Any], dict[str, Any]]:
+def _window_group(name: str, module: Any = window_groups) -> Callable[[Any], dict[str, Any]]:
     def compute(case: Any) -> dict[str, Any]:
         traj = case_trajectory(case) if _closed(case) else None
-        return {r.name: r for r in getattr(window_groups, name)(case, trajectory=traj)}
+        return {r.name: r for r in getattr(module, name)(case, trajectory=traj)}
 
     return compute
 
@@ -97,6 +97,7 @@ _COMPUTE: dict[str, Callable[[Any], dict[str, Any]]] = {
     "eclipses": _window_group("eclipse_results"),
     "contacts": _window_group("contact_results"),
     "lifetime": lambda c: analysis.case_results(c, groups=["lifetime"]),
+    "targets": _window_group("imaging_results", imaging),
 }
 
 

@@ -24,6 +24,7 @@ GROUP_TITLES = {
     "lifetime": "Lifetime",
     "budget": "Delta-v budget",
     "earth_orientation": "Earth orientation (IERS table)",
+    "targets": "Targets and coverage",
 }
 
 # Groups whose numbers could feed a disposal or re-entry decision (rules: safety caution).

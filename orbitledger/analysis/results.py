@@ -34,22 +34,19 @@ _GROUPS: dict[str, Callable[[Any], list[Result]]] = {
     "lifetime": lifetime_results,
     "budget": budget_results,
     "earth_orientation": earth_orientation_results,
+    "targets": imaging_results,
 }
+# Every group is in the editor's results panel, the record's standard results and ``verify``
+# (the editor's titles and per-group caches live in ``widgets``, keyed on these names).
 ALL_GROUPS = tuple(_GROUPS)
-# Groups of the record's standard results (and of ``verify``) that the editor's results panel
-# does not list yet: its titles and per-group caches live in ``widgets``, which adds a group
-# to ALL_GROUPS together with them.
-_NOT_IN_EDITOR: dict[str, Callable[[Any], list[Result]]] = {"targets": imaging_results}
-_GROUPS.update(_NOT_IN_EDITOR)
-STANDARD_GROUPS = (*ALL_GROUPS, *_NOT_IN_EDITOR)
+STANDARD_GROUPS = ALL_GROUPS
 FAST_GROUPS = ("orbit", "j2")
 
 
 def case_results(case: Any, groups: Iterable[str] | None = None) -> dict[str, Result]:
     """The named results of ``case`` (an ``orbitledger.case.Case``), in panel order.
 
-    ``groups`` picks result groups (default: all of them, ``STANDARD_GROUPS``: the editor's
-    ``ALL_GROUPS`` and ``targets``); a group that
+    ``groups`` picks result groups (default: all of them, ``STANDARD_GROUPS``); a group that
     does not apply to the case (no stations, no spacecraft, a hyperbolic orbit) gives nothing.
     Raises ``InputError`` for an unknown group name.
     """
