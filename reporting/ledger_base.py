@@ -136,7 +136,10 @@ class LedgerBase(ABC):
         """``ledger copy``: add one revision whole (or its missing sign-offs) in one transaction."""
 
     def check_writable(self) -> None:
-        """InputError now if this ledger cannot take a revision or a sign-off (read-only)."""
+        """InputError now if this ledger cannot take a revision or a sign-off (read-only).
+
+        Writable by default; a back end that can be opened read-only overrides it."""
+        return None
 
     # --- the build protocol --------------------------------------------------------------
 

@@ -229,8 +229,8 @@ def _bokeh_js(nb: Any) -> Markup:
 def record_context(record: dict[str, Any], nb: Any) -> dict[str, Any]:
     """The template's view of ``record`` (and of the prepared notebook ``nb``)."""
     from .display import display_result
-    from .record_page import POLICY, SCRIPT_SOURCES
     from .findings import findings_view
+    from .record_page import POLICY, SCRIPT_SOURCES
 
     rev = record.get("revision")
     inputs = [

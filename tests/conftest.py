@@ -12,6 +12,7 @@ import logging
 from pathlib import Path
 
 import pytest
+from _pg import pg_url  # noqa: F401  (the PostgreSQL ledger tests' fixture, shared)
 
 log = logging.getLogger(__name__)
 

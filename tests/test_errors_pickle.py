@@ -22,11 +22,12 @@ from orbitledger.kernel.errors import InputError
 
 def _samples() -> dict[str, BaseException]:
     """One instance of each error class, built the way the package raises it."""
-    from orbitledger.cli.main import CheckFailed, UsageError
     from orbitledger.reporting.render_pdf import BrowserMissing
     from orbitledger.reporting.run import BuildError
     from orbitledger.widgets.background import JobCancelled
     from orbitledger.widgets.fields import FieldParseError
+
+    from orbitledger.cli.main import CheckFailed, UsageError
 
     inner = CaseError("orbit.i_deg", 200.0, "must be <= 180.0", file="b.case.json")
     samples = [

@@ -13,13 +13,13 @@ from html.parser import HTMLParser
 
 import pytest
 from _record_study import CASE_NAME, simulated_run, write_study
-from orbitledger.case import CaseError, case_from_data, load_case
 from orbitledger.reporting.build import record_run
 from orbitledger.reporting.findings import FailingCriteria
 from orbitledger.reporting.ledger import Ledger
 from orbitledger.reporting.verify import read_record, verify_record
 
 from orbitledger.analysis import case_results
+from orbitledger.case import CaseError, case_from_data, load_case
 from orbitledger.trade import case_findings
 
 

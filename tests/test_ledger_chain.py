@@ -12,7 +12,6 @@ import shutil
 import sqlite3
 
 import pytest
-from _pg import pg_url  # noqa: F401  (a fixture)
 from _record_study import simulated_run, write_study
 from orbitledger.reporting.build import record_run
 from orbitledger.reporting.ledger import Ledger, open_ledger

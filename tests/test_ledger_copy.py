@@ -11,7 +11,6 @@ import shutil
 import subprocess
 
 import pytest
-from _pg import pg_url  # noqa: F401  (a fixture)
 from orbitledger.reporting.ledger import Ledger, SignOff, open_ledger
 from orbitledger.reporting.ledger_copy import copy_ledger, export_artifacts
 

@@ -19,7 +19,7 @@ import time
 from concurrent.futures import ProcessPoolExecutor
 
 import pytest
-from _pg import admin_url, connect_admin, pg_url, with_database  # noqa: F401  (pg_url: a fixture)
+from _pg import admin_url, connect_admin, with_database
 from _record_study import simulated_run, write_study
 from orbitledger.reporting.ledger import SignOff, open_ledger
 

@@ -8,7 +8,7 @@ raises for a missing privilege and for a row that a policy refuses.
 from __future__ import annotations
 
 import pytest
-from _pg import admin_url, connect_admin, docs_sql, pg_url, with_database  # noqa: F401
+from _pg import admin_url, connect_admin, docs_sql, with_database
 from orbitledger.reporting.ledger import SignOff, open_ledger
 
 from orbitledger.kernel.errors import InputError

@@ -60,9 +60,10 @@ def _axis_labels(node, found):
 def printed(tmp_path_factory):
     """The record of a study showing candidate A's case figures, printed to PDF."""
     import nbformat
+    from orbitledger.widgets import case_figures
+
     from orbitledger.case import load_case
     from orbitledger.figures.show import figure_bundle
-    from orbitledger.widgets import case_figures
 
     folder = tmp_path_factory.mktemp("print")
     study = write_study(folder / "study")

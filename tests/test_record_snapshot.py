@@ -11,9 +11,8 @@ of EGM96 / WGS-84 as the case cites them.
 
 from __future__ import annotations
 
-import re
-
 import math
+import re
 from html.parser import HTMLParser
 
 import nbformat
@@ -61,9 +60,10 @@ def test_the_trade_view_displays_its_table_beside_the_live_widget(cases):
 
 
 def test_the_editor_displays_its_results_panel(cases, tmp_path, monkeypatch):
+    from orbitledger.widgets import CaseEditor
+
     import orbitledger
     from orbitledger.case import starter_case, write_new_case
-    from orbitledger.widgets import CaseEditor
 
     path = tmp_path / "kestrel.case.json"
     write_new_case(path, starter_case())

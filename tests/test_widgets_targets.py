@@ -15,11 +15,11 @@ import math
 from pathlib import Path
 
 import pytest
+from orbitledger.widgets import CaseEditor
+from orbitledger.widgets.inputkeys import CACHE
 
 import orbitledger
 from orbitledger.analysis import case_results
-from orbitledger.widgets import CaseEditor
-from orbitledger.widgets.inputkeys import CACHE
 
 pytestmark = pytest.mark.slow
 

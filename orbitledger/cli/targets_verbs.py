@@ -63,8 +63,8 @@ def _finite(value: float) -> float | None:
 
 def targets_data(case: Any, progress: Any = None) -> dict[str, Any]:
     """Every access to the case's targets in its window, with revisit gaps per target."""
-    from ..analysis.imaging import case_target_access
     from ..analysis.environment_data import _header, case_trajectory, recorded_warnings
+    from ..analysis.imaging import case_target_access
 
     with recorded_warnings() as notes:
         traj = case_trajectory(case, progress)
@@ -95,8 +95,8 @@ def targets_data(case: Any, progress: Any = None) -> dict[str, Any]:
 
 def coverage_data(case: Any, progress: Any = None) -> dict[str, Any]:
     """The coverage of the case's region in its window: fraction per day and per point."""
-    from ..analysis.imaging import case_coverage
     from ..analysis.environment_data import _header, case_trajectory, recorded_warnings
+    from ..analysis.imaging import case_coverage
 
     with recorded_warnings() as notes:
         traj = case_trajectory(case, progress)
