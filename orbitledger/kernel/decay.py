@@ -117,6 +117,9 @@ class _Setup:
     mu: float
     w: float
     rule: tuple[np.ndarray, np.ndarray]
+    q_atol: float = _Q_ATOL_KM
+    cell_km: float = _CELL_KM
+    shared_step: bool = False
 
 
 def _means(s: _Setup, a: np.ndarray, e: np.ndarray, t_s: np.ndarray | None):
@@ -159,14 +162,19 @@ def _rates(s: _Setup, a: np.ndarray, y: np.ndarray) -> np.ndarray:
     return np.stack([dq_da, dt_da], axis=1)
 
 
-def _scale(s: _Setup, y0: np.ndarray, y1: np.ndarray) -> np.ndarray:
-    scale = np.full(y0.shape, _Q_ATOL_KM)
+def _scale(s: _Setup, y0: np.ndarray, y1: np.ndarray, ref: np.ndarray) -> np.ndarray:
+    scale = np.empty(y0.shape)
+    # q's tolerance grows as rho(perigee) / rho(start) (module docstring, item 1), to 1000x;
+    # ref: each row's ln rho at its starting perigee.
+    grow = np.exp(np.minimum(s.profile.log_density(y0[:, 0] - s.radius) - ref, 6.9))
+    scale[:, 0] = s.q_atol * np.maximum(grow, 1.0)
     if y0.shape[1] == 2:
-        scale[:, 1] = _T_ATOL_S + _T_RTOL * np.maximum(np.abs(y0[:, 1]), np.abs(y1[:, 1]))
+        t_rtol = _T_RTOL * s.q_atol / _Q_ATOL_KM
+        scale[:, 1] = _T_ATOL_S + t_rtol * np.maximum(np.abs(y0[:, 1]), np.abs(y1[:, 1]))
     return scale
 
 
-def _step(s, f, a, y, h, k1):
+def _step(s, f, a, y, h, k1, ref):
     """One Dormand-Prince step for each row: (y_new, k7, error norm)."""
     ks = np.empty((7, y.size))
     ks[0] = k1.ravel()
@@ -178,7 +186,7 @@ def _step(s, f, a, y, h, k1):
     ks[6] = f(s, a + h, y_new).ravel()
     err = hc * (_E_ARR @ ks).reshape(y.shape)
     with np.errstate(invalid="ignore"):
-        norm = np.sqrt(np.mean((err / _scale(s, y, y_new)) ** 2, axis=1))
+        norm = np.sqrt(np.mean((err / _scale(s, y, y_new, ref)) ** 2, axis=1))
     finite = np.isfinite(y_new).all(axis=1)
     return y_new, ks[6].reshape(y.shape), np.where(finite, norm, np.inf)
 
@@ -198,14 +206,19 @@ def _integrate(
     k1 = f(s, a, y)
     log = [(np.arange(n), a.copy(), y.copy(), k1.copy())]
     evaluations = n
+    ref = s.profile.log_density(y[:, 0] - s.radius)
     reentered = y[:, 0] <= s.r_re
     # First step: 5 km, or a tenth of the way down to re-entry; the controller adapts it.
     h = -np.minimum(5.0, 0.1 * np.maximum(y[:, 0] - s.r_re, 1e-3))
     active = np.flatnonzero(np.isfinite(k1).all(axis=1) & ~reentered)
+    if s.shared_step and active.size:  # one step for all rows: they stay in step together
+        h[:] = h[active].max()
     while active.size:
         aa, yy, hh, kk = a[active], y[active], h[active], k1[active]
-        y_new, k7, norm = _step(s, f, aa, yy, hh, kk)
+        y_new, k7, norm = _step(s, f, aa, yy, hh, kk, ref[active])
         evaluations += 6 * active.size
+        if s.shared_step:
+            norm = np.full(norm.size, norm.max())
         accept = norm <= 1.0
         factor = np.clip(0.9 * np.where(norm > 0.0, norm, 1e-10) ** -0.2, 0.2, 10.0)
         h[active] = hh * np.where(accept, factor, np.minimum(factor, 0.9))
@@ -217,7 +230,7 @@ def _integrate(
         if cross.any():  # re-entry inside the step: secant on q, then a final, shorter step
             j, ks = acc[cross], rows[cross]
             h_last = hh[j] * (yy[j, 0] - s.r_re) / (yy[j, 0] - y_acc[cross, 0])
-            y_last, k_last, _ = _step(s, f, aa[j], yy[j], h_last, kk[j])
+            y_last, k_last, _ = _step(s, f, aa[j], yy[j], h_last, kk[j], ref[ks])
             evaluations += 6 * j.size
             y_last[:, 0] = s.r_re  # q is all but linear across the step: within 1e-6 km
             a_new[cross], y_acc[cross], k_acc[cross] = aa[j] + h_last, y_last, k_last
@@ -259,7 +272,7 @@ def _times(s: _Setup, points: list[tuple]):
     edges_all, nodes_all, q_all = [], [], []
     for pts in points:
         a0, a1 = pts[0][0], pts[0][-1]
-        n_cells = max(1, math.ceil((a0 - a1) / _CELL_KM))
+        n_cells = max(1, math.ceil((a0 - a1) / s.cell_km))
         edges = np.linspace(a0, a1, n_cells + 1)
         mid, half = 0.5 * (edges[:-1] + edges[1:]), 0.5 * (edges[1:] - edges[:-1])
         nodes = (mid[:, None] + half[:, None] * _GL3_X).ravel()
@@ -295,6 +308,9 @@ def decay_orbits(
     body: Body,
     t_stop_s: float | np.ndarray = math.inf,
     history: bool = False,
+    q_atol_km: float = _Q_ATOL_KM,
+    cell_km: float = _CELL_KM,
+    shared_step: bool = False,
 ) -> DecayRun:
     """Integrate a batch of orbits down to re-entry (perigee height ``reentry_altitude_km``
     above ``radius_km``) or to ``t_stop_s``, whichever comes first. Method: module docstring.
@@ -303,7 +319,12 @@ def decay_orbits(
     (rad), B = m / (Cd A) (kg/m^2), the density profile (time origin at the start), the
     reference radius, the re-entry height, the body (mu, rotation rate) and the time limit (s;
     scalar or one per orbit). Orbits already at or below the re-entry perigee are reported
-    re-entered at t = 0.
+    re-entered at t = 0. ``q_atol_km`` (the step control's tolerance on q; the time's
+    relative tolerance scales with it) and ``cell_km`` (the time quadrature's cells) loosen
+    the run for a rough first look, as the disposal search's first round does.
+    ``shared_step``: one step size for the whole batch (the largest every row accepts), so
+    that orbits that differ little (a comb of candidate perigees) advance together in one
+    array pass per step instead of drifting apart into many small passes.
     """
     a0 = np.atleast_1d(np.asarray(a0_km, dtype=float))
     e_start = np.broadcast_to(np.asarray(e0, dtype=float), a0.shape)
@@ -317,7 +338,7 @@ def decay_orbits(
     swing = float(np.max(a0 * e_start / scale_km)) if n else 0.0
     rule = _RULES[32 if swing <= 2.0 else 64 if swing <= 8.0 else 128]
     s = _Setup(float(ballistic_coefficient_kg_m2), math.cos(i_rad), radius_km, r_re, profile,
-               body.mu_km3_s2, body.rotation_rate_rad_s, rule)  # fmt: skip
+               body.mu_km3_s2, body.rotation_rate_rad_s, rule, q_atol_km, cell_km, shared_step)  # fmt: skip
     timed = profile.time_varying
     y0 = np.stack([q0, np.zeros(n)], axis=1) if timed else q0[:, None]
     points, reentered, evaluations = _integrate(s, a0, y0, stop)
