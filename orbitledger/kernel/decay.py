@@ -23,7 +23,11 @@ How it is solved, and why it is fast:
    (re-entry): dq/da = 1 - e - a de/da, de/da = <de/dt> / <da/dt>, in which F and B cancel.
    q varies smoothly and slowly (an eccentric orbit keeps its perigee while the apogee falls),
    so Dormand-Prince 5(4) (Dormand & Prince 1980, J. Comput. Appl. Math. 6, 19-26) takes 10-30
-   steps to 0.5 m, however many years the decay lasts.
+   steps, however many years the decay lasts. Error control (a componentwise tolerance
+   scale, Hairer, Norsett & Wanner, *Solving ODEs I*, 2nd ed., Sec. II.4): 0.2 m on q at
+   the start, growing as rho(q) / rho(q_start) (at most 1000x): a perigee error dq moves the
+   lifetime by about dq / H times the share of it still ahead, and that share falls as
+   1 / rho(q) (our scaling: every step's share of the lifetime error stays near the first's).
 2. **Time by quadrature.** With q(a) known (cubic Hermite between the steps, from q and dq/da
    at each end), the time is t = int B mu / (1e3 F a^2 <rho v^3 (1 - e cos E)>) da, three
    Gauss-Legendre nodes on cells of at most 5 km, all nodes of all orbits in one array pass.
@@ -31,7 +35,7 @@ How it is solved, and why it is fast:
    density that does not change with time one integration serves every ballistic
    coefficient (``orbitledger.kernel.lifetime`` caches it and multiplies the times by B).
 4. **Batches.** Many orbits (e.g. the candidate perigees of a disposal search) are integrated
-   at once with array operations, each with its own step.
+   at once with array operations, each with its own step or (``shared_step``) one for all.
 
 A time-varying density (a solar cycle, a flux table) couples t into the rates: then (q, t) are
 integrated together over a (rtol 1e-8 on t), each orbit stopped at re-entry or at its time
@@ -164,9 +168,7 @@ def _rates(s: _Setup, a: np.ndarray, y: np.ndarray) -> np.ndarray:
 
 def _scale(s: _Setup, y0: np.ndarray, y1: np.ndarray, ref: np.ndarray) -> np.ndarray:
     scale = np.empty(y0.shape)
-    # q's tolerance grows as rho(perigee) / rho(start) (module docstring, item 1), to 1000x;
-    # ref: each row's ln rho at its starting perigee.
-    grow = np.exp(np.minimum(s.profile.log_density(y0[:, 0] - s.radius) - ref, 6.9))
+    grow = np.exp(np.minimum(s.profile.log_density(y0[:, 0] - s.radius) - ref, 6.9))  # item 1
     scale[:, 0] = s.q_atol * np.maximum(grow, 1.0)
     if y0.shape[1] == 2:
         t_rtol = _T_RTOL * s.q_atol / _Q_ATOL_KM
@@ -211,14 +213,13 @@ def _integrate(
     # First step: 5 km, or a tenth of the way down to re-entry; the controller adapts it.
     h = -np.minimum(5.0, 0.1 * np.maximum(y[:, 0] - s.r_re, 1e-3))
     active = np.flatnonzero(np.isfinite(k1).all(axis=1) & ~reentered)
-    if s.shared_step and active.size:  # one step for all rows: they stay in step together
+    if s.shared_step and active.size:  # one step for all rows (module docstring, item 4)
         h[:] = h[active].max()
     while active.size:
         aa, yy, hh, kk = a[active], y[active], h[active], k1[active]
         y_new, k7, norm = _step(s, f, aa, yy, hh, kk, ref[active])
         evaluations += 6 * active.size
-        if s.shared_step:
-            norm = np.full(norm.size, norm.max())
+        norm = np.full(norm.size, norm.max()) if s.shared_step else norm
         accept = norm <= 1.0
         factor = np.clip(0.9 * np.where(norm > 0.0, norm, 1e-10) ** -0.2, 0.2, 10.0)
         h[active] = hh * np.where(accept, factor, np.minimum(factor, 0.9))
@@ -318,13 +319,9 @@ def decay_orbits(
     Given initial mean a (km) and e (arrays of one shape (n,), or scalars), inclination i
     (rad), B = m / (Cd A) (kg/m^2), the density profile (time origin at the start), the
     reference radius, the re-entry height, the body (mu, rotation rate) and the time limit (s;
-    scalar or one per orbit). Orbits already at or below the re-entry perigee are reported
-    re-entered at t = 0. ``q_atol_km`` (the step control's tolerance on q; the time's
-    relative tolerance scales with it) and ``cell_km`` (the time quadrature's cells) loosen
-    the run for a rough first look, as the disposal search's first round does.
-    ``shared_step``: one step size for the whole batch (the largest every row accepts), so
-    that orbits that differ little (a comb of candidate perigees) advance together in one
-    array pass per step instead of drifting apart into many small passes.
+    scalar or one per orbit). Orbits at or below the re-entry perigee re-enter at t = 0.
+    ``q_atol_km`` (q's starting tolerance; t's scales with it) and ``cell_km`` (time cells)
+    loosen a rough look; ``shared_step``: module docstring, item 4.
     """
     a0 = np.atleast_1d(np.asarray(a0_km, dtype=float))
     e_start = np.broadcast_to(np.asarray(e0, dtype=float), a0.shape)
@@ -338,7 +335,8 @@ def decay_orbits(
     swing = float(np.max(a0 * e_start / scale_km)) if n else 0.0
     rule = _RULES[32 if swing <= 2.0 else 64 if swing <= 8.0 else 128]
     s = _Setup(float(ballistic_coefficient_kg_m2), math.cos(i_rad), radius_km, r_re, profile,
-               body.mu_km3_s2, body.rotation_rate_rad_s, rule, q_atol_km, cell_km, shared_step)  # fmt: skip
+               body.mu_km3_s2, body.rotation_rate_rad_s, rule, q_atol_km, cell_km,
+               shared_step)  # fmt: skip
     timed = profile.time_varying
     y0 = np.stack([q0, np.zeros(n)], axis=1) if timed else q0[:, None]
     points, reentered, evaluations = _integrate(s, a0, y0, stop)
