@@ -19,7 +19,7 @@ from types import MappingProxyType
 import numpy as np
 
 from .constants import EARTH, SECONDS_PER_DAY, TROPICAL_YEAR_DAYS, Body
-from .decay import decay_orbits
+from .decay import _Q_ATOL_KM, decay_orbits
 from .density import DensityProfile, exponential_profile
 from .elements import Elements
 from .errors import InputError
@@ -63,11 +63,12 @@ def _batch_lifetimes(
     from the 5-km cells of ``lifetime_years``). ``rough``: the first round's look, each
     orbit with its own steps, the step tolerance on q loosened to 0.1 km and 40-km time
     cells (lifetimes to about 1e-3 relative, enough to place the root within ~0.3 km)."""
-    loose = {"q_atol_km": 0.1, "cell_km": 40.0} if rough else {"cell_km": 20.0, "shared_step": True}
     run = decay_orbits(
         0.5 * (r_a + r_ps), (r_a - r_ps) / (r_a + r_ps), i_rad=i_rad,
         ballistic_coefficient_kg_m2=b, profile=profile, radius_km=radius,
-        reentry_altitude_km=h_re, body=body, t_stop_s=stop_years * _YEAR_S, **loose,
+        reentry_altitude_km=h_re, body=body, t_stop_s=stop_years * _YEAR_S,
+        q_atol_km=0.1 if rough else _Q_ATOL_KM, cell_km=40.0 if rough else 20.0,
+        shared_step=not rough,
     )  # fmt: skip
     return np.where(run.reentered, run.t_end_s / _YEAR_S, math.inf)
 
