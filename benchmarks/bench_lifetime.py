@@ -129,7 +129,7 @@ def _starter_disposal(before) -> bool:
     if before is not None:
         functions[f"{name}, kernel before"] = cold(before)
     functions[f"{name}, fast kernel"] = cold(now)
-    best = _timed_group(name, functions, base, 3)
+    best = _timed_group(name, functions, base, 7)
     f, o = cold(now)(), ode()
     line = f"  fast {f:.6g} km, ODE {o:.6g} km: |diff| {abs(f - o):.3g} km"
     if before is not None:

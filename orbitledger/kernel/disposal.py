@@ -59,8 +59,8 @@ def _batch_lifetimes(
 ) -> np.ndarray:
     """Lifetimes (years; inf beyond ``stop_years``) of orbits of apogee radius r_a and the
     perigee radii r_ps, all integrated at once (``orbitledger.kernel.decay``) with one step
-    size shared by the batch and 20-km time cells (the times change by about 1e-6 relative
-    from the 5-km cells of ``lifetime_years``). ``rough``: the first round's look, each
+    size shared by the batch and 20-km time cells (the times differ by at most about 1e-5
+    relative from ``lifetime_years``, with its own steps and 5-km cells). ``rough``: the first round's look, each
     orbit with its own steps, the step tolerance on q loosened to 0.1 km and 40-km time
     cells (lifetimes to about 1e-3 relative, enough to place the root within ~0.3 km)."""
     run = decay_orbits(
