@@ -41,7 +41,7 @@ A time-varying density (a solar cycle, a flux table) couples t into the rates: t
 integrated together over a (rtol 1e-8 on t), each orbit stopped at re-entry or at its time
 limit ``t_stop_s``. A circular orbit in a density that does not change with time stays circular
 (de/dt = 0 at e = 0), and its lifetime is one quadrature, ``circular_decay``, over the
-profile's 1-km cells.
+profile's 1-km cells (``orbitledger.kernel.decay_circular``, re-exported here).
 """
 
 from __future__ import annotations
@@ -53,6 +53,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .constants import SECONDS_PER_DAY, TROPICAL_YEAR_DAYS, Body
+from .decay_circular import _GL3_W, _GL3_X, circular_decay
 from .density import DensityProfile
 
 __all__ = ["DecayRun", "circular_decay", "decay_orbits", "eccentric_anomaly_nodes"]
@@ -77,8 +78,6 @@ _Q_ATOL_KM = 2e-4
 _T_RTOL = 1e-8
 _T_ATOL_S = 1.0
 _CELL_KM = 5.0
-_GL3_X = np.array([-math.sqrt(0.6), 0.0, math.sqrt(0.6)])
-_GL3_W = np.array([5.0, 8.0, 5.0]) / 9.0
 
 
 def eccentric_anomaly_nodes(n: int) -> tuple[np.ndarray, np.ndarray]:
@@ -253,48 +252,58 @@ def _integrate(
     return points, reentered, evaluations
 
 
-def _hermite_q(points: tuple, a_nodes: np.ndarray) -> np.ndarray:
-    """q at ``a_nodes`` by cubic Hermite between the accepted points (q and dq/da at each)."""
-    x, q, m = points[0][::-1], points[1][::-1, 0], points[2][::-1, 0]
-    k = np.clip(np.searchsorted(x, a_nodes, side="right") - 1, 0, x.size - 2)
-    h = x[k + 1] - x[k]
-    t = (a_nodes - x[k]) / h
+def _hermite(points: list[tuple], x: np.ndarray, row: np.ndarray) -> np.ndarray:
+    """q of orbit ``row`` at a = ``x``, by cubic Hermite between its accepted points (q and
+    dq/da at each), for all orbits in one pass: each orbit's points, in increasing a, take
+    keys row * span + a, so that one sorted search finds every interval."""
+    size = np.array([p[0].size for p in points])
+    first = np.concatenate(([0], np.cumsum(size)[:-1]))
+    xs = np.concatenate([p[0][::-1] for p in points])
+    qs = np.concatenate([p[1][::-1, 0] for p in points])
+    ms = np.concatenate([p[2][::-1, 0] for p in points])
+    low, span = xs.min(), xs.max() - xs.min() + 1.0
+    owner = np.repeat(np.arange(size.size), size)
+    k = np.searchsorted(owner * span + (xs - low), row * span + (x - low), side="right") - 1
+    k = np.clip(k, first[row], first[row] + np.maximum(size[row] - 2, 0))
+    k1 = np.minimum(k + 1, xs.size - 1)
+    h = np.where(size[row] > 1, xs[k1] - xs[k], 1.0)
+    t = np.where(size[row] > 1, (x - xs[k]) / h, 0.0)
     return (
-        (2 * t**3 - 3 * t**2 + 1) * q[k]
-        + (t**3 - 2 * t**2 + t) * h * m[k]
-        + (-2 * t**3 + 3 * t**2) * q[k + 1]
-        + (t**3 - t**2) * h * m[k + 1]
+        (2 * t**3 - 3 * t**2 + 1) * qs[k]
+        + (t**3 - 2 * t**2 + t) * h * ms[k]
+        + (-2 * t**3 + 3 * t**2) * qs[k1]
+        + (t**3 - t**2) * h * ms[k1]
     )
 
 
 def _times(s: _Setup, points: list[tuple]):
     """Time at the cell edges of every orbit by Gauss-Legendre quadrature of dt/da, all
     orbits in one array pass: per orbit (a_edges, e_edges, t_edges)."""
-    edges_all, nodes_all, q_all = [], [], []
-    for pts in points:
-        a0, a1 = pts[0][0], pts[0][-1]
-        n_cells = max(1, math.ceil((a0 - a1) / s.cell_km))
-        edges = np.linspace(a0, a1, n_cells + 1)
-        mid, half = 0.5 * (edges[:-1] + edges[1:]), 0.5 * (edges[1:] - edges[:-1])
-        nodes = (mid[:, None] + half[:, None] * _GL3_X).ravel()
-        where = np.concatenate((nodes, edges))
-        q = _hermite_q(pts, where) if pts[0].size > 1 else np.full(where.size, pts[1][0, 0])
-        edges_all.append(edges)
-        nodes_all.append(nodes)
-        q_all.append(q)
-    nodes = np.concatenate(nodes_all)
-    q_nodes = np.concatenate([q[: nd.size] for q, nd in zip(q_all, nodes_all, strict=True)])
+    n = len(points)
+    a0 = np.array([p[0][0] for p in points])
+    a1 = np.array([p[0][-1] for p in points])
+    cells = np.maximum(1, np.ceil((a0 - a1) / s.cell_km).astype(np.intp))
+    row_e, row_c = np.repeat(np.arange(n), cells + 1), np.repeat(np.arange(n), cells)
+    first_e = np.concatenate(([0], np.cumsum(cells + 1)[:-1]))
+    j = np.arange(row_e.size) - first_e[row_e]
+    edges = a0[row_e] + (a1 - a0)[row_e] * (j / cells[row_e])
+    left = np.flatnonzero(j < cells[row_e])  # each cell's edge at the larger a
+    mid, half = 0.5 * (edges[left] + edges[left + 1]), 0.5 * (edges[left] - edges[left + 1])
+    nodes = (mid[:, None] - half[:, None] * _GL3_X).ravel()
+    q_nodes = _hermite(points, nodes, np.repeat(row_c, 3))
+    e_edges = _eccentricity(edges, _hermite(points, edges, row_e))
     e = _eccentricity(nodes, q_nodes)
     i_a, _ = _means(s, nodes, e, None)
     with np.errstate(divide="ignore", over="ignore"):
         dt_da = s.mu * s.b / (1e3 * _rotation(s, nodes, e) * nodes * nodes * i_a)
-    out, start = [], 0
-    for edges, nd, q in zip(edges_all, nodes_all, q_all, strict=True):
-        cells = (dt_da[start : start + nd.size].reshape(-1, 3) @ _GL3_W) * np.diff(-edges) / 2.0
-        start += nd.size
-        t = np.concatenate(([0.0], np.cumsum(cells)))
-        out.append((edges, _eccentricity(edges, q[nd.size :]), t))
-    return out
+    cum = np.cumsum((dt_da.reshape(-1, 3) @ _GL3_W) * half)
+    before = np.concatenate(([0.0], cum))[np.concatenate(([0], np.cumsum(cells)))[row_c]]
+    t = np.zeros(edges.size)
+    t[left + 1] = cum - before
+    return [
+        (edges[lo:hi], e_edges[lo:hi], t[lo:hi])
+        for lo, hi in zip(first_e, first_e + cells + 1, strict=True)
+    ]
 
 
 def decay_orbits(
@@ -355,45 +364,3 @@ def decay_orbits(
     a_end = np.array([r[0][-1] for r in runs])
     e_end = np.array([r[1][-1] for r in runs])
     return DecayRun(reentered, t_end, a_end, e_end, tuple(runs) if history else (), evaluations)
-
-
-def circular_decay(
-    a0_km: float,
-    *,
-    i_rad: float,
-    ballistic_coefficient_kg_m2: float,
-    profile: DensityProfile,
-    radius_km: float,
-    reentry_altitude_km: float,
-    body: Body,
-) -> tuple[np.ndarray, np.ndarray]:
-    """Decay of a circular orbit in a density that does not change with time, by quadrature.
-
-    Returns (a_km, t_s): the semi-major axis from ``a0_km`` down to the re-entry radius at
-    the profile's cell edges, and the time (s) at which the orbit passes each, from 0 at
-    ``a0_km``; the last time is the lifetime. T = int B / (1e3 F rho(a - R) sqrt(mu a)) da
-    (the circular case of the rates in the module docstring: v^2 = mu / a), three
-    Gauss-Legendre nodes per cell of the profile (ln rho is linear in each, so the rule is
-    exact to about 1e-9).
-    """
-    mu, w = body.mu_km3_s2, body.rotation_rate_rad_s
-    r_re = radius_km + float(reentry_altitude_km)
-    if a0_km <= r_re:
-        return np.array([a0_km]), np.zeros(1)
-    lo = (r_re - radius_km - profile.h0_km) / profile.dh_km
-    hi = (a0_km - radius_km - profile.h0_km) / profile.dh_km
-    inner = np.arange(math.floor(lo) + 1, math.ceil(hi))
-    inner_a = radius_km + profile.h0_km + profile.dh_km * inner
-    inner_a = inner_a[(inner_a > r_re) & (inner_a < a0_km)]
-    edges = np.concatenate(([a0_km], inner_a[::-1], [r_re]))
-    mid, half = 0.5 * (edges[:-1] + edges[1:]), 0.5 * (edges[:-1] - edges[1:])
-    nodes = mid[:, None] + half[:, None] * _GL3_X
-    rotation = (1.0 - nodes * w * math.cos(i_rad) / np.sqrt(mu / nodes)) ** 2
-    with np.errstate(over="ignore"):
-        dt_da = (
-            ballistic_coefficient_kg_m2
-            * np.exp(-profile.log_density(nodes - radius_km))
-            / (1e3 * rotation * np.sqrt(mu * nodes))
-        )
-    cell_t = (dt_da @ _GL3_W) * half
-    return edges, np.concatenate(([0.0], np.cumsum(cell_t)))
