@@ -176,14 +176,15 @@ def disposal_table() -> None:
     import numpy as np
 
     from orbitledger.kernel import budget as kb
+    from orbitledger.kernel import disposal as kd
 
     args, kw = _starter_disposal_call()
-    current = getattr(kb, "_COMB", None)
+    current = getattr(kd, "_COMB", None)
 
     def search(comb) -> Callable[[], object]:
         def run() -> object:
             if comb is not None:
-                kb._COMB = comb
+                kd._COMB = comb
             return kb.disposal_perigee_lowering(*args, **kw)
 
         return run
@@ -193,7 +194,7 @@ def disposal_table() -> None:
         functions["disposal search, former comb"] = search(np.array([-2.0, -0.4, 0.4, 2.0]))
     best = min_times_s(functions, repeats=5)
     if current is not None:
-        kb._COMB = current
+        kd._COMB = current
     print("disposal search of the starter case's budget (min of 5 interleaved runs):")
     for name, seconds in best.items():
         print(f"{name:34s} {seconds * 1e3:8.1f} ms  (target 40 ms: {seconds / 0.040:.2f} of it)")

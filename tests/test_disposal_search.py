@@ -11,6 +11,7 @@ import pytest
 
 from orbitledger.kernel import EARTH, Elements
 from orbitledger.kernel import budget as kb
+from orbitledger.kernel import disposal as kd
 from orbitledger.kernel.lifetime import _mean_radius_km, lifetime_years
 
 RE = EARTH.radius_km
@@ -27,13 +28,13 @@ def _elements(hp_km: float, ha_km: float, i_deg: float = 97.4) -> Elements:
 
 def _counted(monkeypatch) -> list[int]:
     sizes: list[int] = []
-    original = kb._batch_lifetimes
+    original = kd._batch_lifetimes
 
-    def batch(r_a, r_ps, *args):
+    def batch(r_a, r_ps, *args, **kw):
         sizes.append(len(r_ps))
-        return original(r_a, r_ps, *args)
+        return original(r_a, r_ps, *args, **kw)
 
-    monkeypatch.setattr(kb, "_batch_lifetimes", batch)
+    monkeypatch.setattr(kd, "_batch_lifetimes", batch)
     return sizes
 
 
@@ -55,7 +56,8 @@ def test_search_agrees_with_the_former_search_in_fewer_batches(monkeypatch, hp, 
     new = kb.disposal_perigee_lowering(el, limit, B)
     new_batches = len(sizes)
     sizes.clear()
-    monkeypatch.setattr(kb, "_COMB", _FORMER_COMB)
+    monkeypatch.setattr(kd, "_COMB", _FORMER_COMB)
+    monkeypatch.setattr(kd, "_ROUGH_POINTS", 0)  # the former first round: 8, accurate
     old = kb.disposal_perigee_lowering(el, limit, B)
     old_batches = len(sizes)
     assert new.dv_km_s > 0.0
@@ -83,3 +85,31 @@ def test_result_is_the_highest_perigee_meeting_the_limit(hp, ha, limit):
     assert life(plan.perigee_altitude_km) <= limit
     assert life(plan.perigee_altitude_km + 0.1) > limit
     assert plan.lifetime_after_years == pytest.approx(life(plan.perigee_altitude_km), rel=1e-4)
+
+
+def test_starter_case_disposal_matches_the_ode_bisection_with_nrlmsis(monkeypatch):
+    # The starter case of `orbitledger new`: 545 km circular at 97.5 deg, B = m / (Cd A) =
+    # 181.8 kg/m^2, 5-year limit, NRLMSIS 2.1 (pymsis) at the ECSS-E-ST-10-04C moderate level.
+    # Reference: the former bisection to 0.1 km with one scipy RK45 integration in time per
+    # trial (lifetime_ode) on the same density table; both lie within 0.1 km below the root.
+    from orbitledger.kernel.flux import level_flux
+    from orbitledger.kernel.lifetime_ode import disposal_bisection_ode, orbit_averaged_ode
+    from orbitledger.kernel.nrlmsis import nrlmsis_profile
+
+    i_deg, b, limit = 97.5, 181.818, 5.0
+    profile = nrlmsis_profile(level_flux("moderate"), i_deg)
+    el = Elements(RE + 545.0, 0.0, i_deg, 0.0, 0.0, 0.0)
+    sizes = _counted(monkeypatch)
+    plan = kb.disposal_perigee_lowering(el, limit, b, density=profile)
+    assert len(sizes) == 2  # one rough batch, one accurate comb
+    i_rad = math.radians(i_deg)
+    radius = _mean_radius_km(i_rad, EARTH)
+    rp_ode, _ = disposal_bisection_ode(el.a_km, 0.0, i_rad, b, profile, radius, 120.0, limit)
+    assert plan.perigee_altitude_km == pytest.approx(rp_ode - radius, abs=0.2)
+    rp, ra = radius + plan.perigee_altitude_km, radius + plan.apogee_altitude_km
+    years, reentered, _ = orbit_averaged_ode(
+        0.5 * (rp + ra), (ra - rp) / (ra + rp), i_rad, b, profile, radius, 120.0, 50.0
+    )
+    assert reentered
+    assert plan.lifetime_after_years == pytest.approx(years, rel=1e-4)
+    assert plan.lifetime_after_years <= limit

@@ -131,3 +131,25 @@ def test_disposal_search_matches_the_ode_bisection(hp_km, ha_km, b, limit):
     assert lifetime_years(after, ballistic_coefficient_kg_m2=b).years == pytest.approx(
         plan.lifetime_after_years, rel=1e-4
     )
+
+
+def test_solar_cycle_lifetime_matches_the_ode_to_1e_4():
+    # A density that changes with time (NRLMSIS 2.1 through pymsis over a Hathaway-Wilson-
+    # Reichmann 1994 solar cycle, kernel/flux.py): the kernel integrates (q, t) over a with
+    # the graded q tolerance; the reference is the former integration in time (scipy RK45)
+    # reading the same table at each time.
+    from orbitledger.kernel.flux import solar_cycle_flux
+    from orbitledger.kernel.nrlmsis import nrlmsis_profile
+
+    cycle = nrlmsis_profile(solar_cycle_flux(2461406.5, 2458832.5), 97.5)
+    assert cycle.time_varying
+    i_rad = math.radians(97.5)
+    radius = _mean_radius_km(i_rad, EARTH)
+    rp, ra = radius + 400.0, radius + 800.0
+    elements = Elements(0.5 * (rp + ra), (ra - rp) / (ra + rp), 97.5, 0.0, 0.0, 0.0)
+    fast = lifetime_years(elements, ballistic_coefficient_kg_m2=80.0, density=cycle)
+    years, reentered, _ = orbit_averaged_ode(
+        float(elements.a_km), float(elements.e), i_rad, 80.0, cycle, radius, 120.0, 200.0
+    )
+    assert fast.reentered and reentered
+    assert fast.years == pytest.approx(years, rel=1e-4)

@@ -1,6 +1,7 @@
 """Delta-v and propellant budget: the rocket equation, drag make-up, disposal, margins, lines.
 
-A budget is a list of lines, each a delta-v with a basis (how it was computed). Computed lines
+A budget is a list of lines, each a delta-v with a basis (how it was computed; the disposal
+line from ``orbitledger.kernel.disposal``, re-exported here). Computed lines
 (orbit raise from the burn plan, station-keeping, disposal) get the margin policy's
 percentage added; fixed allowances only when asked. Propellant is taken line by line with the
 rocket equation from the mass left after the lines before it (Tsiolkovsky; any textbook, e.g.
@@ -16,8 +17,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import asdict, dataclass, field
-from types import MappingProxyType
+from dataclasses import asdict, dataclass
 from typing import Any
 
 import numpy as np
@@ -25,12 +25,10 @@ from numpy.typing import ArrayLike
 
 from .atmosphere import density_kg_m3
 from .constants import EARTH, G0_M_S2, SECONDS_PER_DAY, TROPICAL_YEAR_DAYS, Body
-from .decay import decay_orbits
-from .density import DensityProfile, exponential_profile
+from .density import DensityProfile
+from .disposal import DisposalPlan, disposal_perigee_lowering
 from .elements import Elements
 from .errors import InputError
-from .lifetime import LIFETIME_CAUTION, lifetime_years
-from .transfers import hohmann_elliptic
 
 __all__ = [
     "BUDGET_CAUTION",
@@ -117,166 +115,6 @@ def drag_makeup_dv_km_s_per_year(
     decel_m_s2 = 0.5 * rho * (v * 1000.0) ** 2 * factor / b
     mean_decel = float(np.mean(decel_m_s2 * (1.0 - e * cos_e)))
     return mean_decel * _YEAR_S / 1000.0
-
-
-@dataclass(frozen=True)
-class DisposalPlan:
-    """The perigee-lowering burn (at apogee) that brings the lifetime under a limit."""
-
-    dv_km_s: float
-    perigee_altitude_km: float
-    apogee_altitude_km: float
-    lifetime_before_years: float
-    lifetime_after_years: float
-    lifetime_limit_years: float
-    assumptions: MappingProxyType = field(default_factory=lambda: MappingProxyType({}))
-    caution: str = LIFETIME_CAUTION
-
-
-def _batch_lifetimes(
-    r_a: float,
-    r_ps: np.ndarray,
-    i_rad: float,
-    b: float,
-    profile: DensityProfile,
-    radius: float,
-    h_re: float,
-    stop_years: float,
-    body: Body,
-) -> np.ndarray:
-    """Lifetimes (years; inf beyond ``stop_years``) of orbits of apogee radius r_a and the
-    perigee radii r_ps, all integrated at once (``orbitledger.kernel.decay``)."""
-    run = decay_orbits(
-        0.5 * (r_a + r_ps), (r_a - r_ps) / (r_a + r_ps), i_rad=i_rad,
-        ballistic_coefficient_kg_m2=b, profile=profile, radius_km=radius,
-        reentry_altitude_km=h_re, body=body, t_stop_s=stop_years * _YEAR_S,
-    )  # fmt: skip
-    return np.where(run.reentered, run.t_end_s / _YEAR_S, math.inf)
-
-
-def _root_estimate(h: np.ndarray, t: np.ndarray, limit: float) -> float | None:
-    """Where ln T(h) crosses ln(limit): a cubic through the four evaluated points nearest
-    the crossing (fewer when fewer are finite), or None without a crossing."""
-    ok = np.isfinite(t) & (t > 0.0)
-    h, log_t = h[ok], np.log(t[ok])
-    order = np.argsort(h)
-    h, log_t = h[order], log_t[order] - math.log(limit)
-    k = int(np.searchsorted(log_t, 0.0))  # log_t increases with h
-    if k == 0 or k == h.size:
-        return None
-    pick = slice(max(0, k - 2), min(h.size, k + 2))
-    coef = np.polyfit(h[pick] - h[k - 1], log_t[pick], h[pick].size - 1)
-    roots = np.roots(coef) + h[k - 1]
-    real = roots[np.isreal(roots)].real
-    inside = real[(real >= h[k - 1]) & (real <= h[k])]
-    if inside.size:
-        return float(inside[0])
-    w = -log_t[k - 1] / (log_t[k] - log_t[k - 1])
-    return float(h[k - 1] + w * (h[k] - h[k - 1]))
-
-
-# The later rounds' perigees around the root estimate, in units of the tolerance.
-_COMB = 0.9 * np.arange(-10.0, 11.0)
-
-
-def _perigee_search(
-    life, lo: float, hi: float, t_hi: float, limit: float, tol_km: float = 0.1
-) -> tuple[float, float]:
-    """The highest perigee radius with lifetime <= limit, within ``tol_km`` of the root.
-
-    ``life(r_ps)`` gives the lifetimes of a batch of perigee radii. Round one tries 8
-    perigees spread over [lo, hi]; each later round tries a comb of 21 perigees 0.9 tol apart
-    centred on the root of a cubic through the four evaluated ln T nearest the crossing
-    (round one's estimate is within a kilometre of the root on the decay
-    curves of low orbits), so two rounds usually close the bracket: a batch costs about the
-    same for 3 or 21 perigees (the integration's steps are done for all at once).
-    """
-    seen_h, seen_t = [hi], [t_hi]
-    t_lo = 0.0
-    candidates = np.linspace(lo, hi, 10)[1:-1]
-    for _ in range(12):
-        t = life(candidates)
-        seen_h.extend(candidates.tolist())
-        seen_t.extend(t.tolist())
-        below, above = candidates[t <= limit], candidates[t > limit]
-        if below.size and below.max() > lo:
-            lo, t_lo = float(below.max()), float(t[candidates == below.max()][0])
-        if above.size and above.min() < hi:
-            hi = float(above.min())
-        if hi - lo <= tol_km:
-            break
-        guess = _root_estimate(np.array(seen_h), np.array(seen_t), limit)
-        if guess is None or not lo < guess < hi:
-            guess = 0.5 * (lo + hi)
-        offsets = _COMB * tol_km
-        candidates = np.unique(np.clip(guess + offsets, lo + 1e-4, hi - 1e-4))
-    return lo, t_lo
-
-
-def disposal_perigee_lowering(
-    elements: Elements,
-    lifetime_limit_years: float,
-    ballistic_coefficient_kg_m2: float,
-    solar_activity: str = "moderate",
-    reentry_altitude_km: float = 120.0,
-    body: Body = EARTH,
-    density: DensityProfile | None = None,
-) -> DisposalPlan:
-    """Lower the perigee (one burn at apogee) until the drag lifetime is under the limit.
-
-    Given the end-of-mission mean ``elements``, the limit in years (> 0), the ballistic
-    coefficient (kg/m^2), the solar-activity level (or a ``density`` profile,
-    ``orbitledger.kernel.density``) and the re-entry altitude. The lifetime is that of
-    ``orbitledger.kernel.lifetime.lifetime_years`` (orbit-averaged); the perigee height is
-    searched with batches of candidate perigees integrated at once
-    (``orbitledger.kernel.decay``, each stopped at three times the limit) until the highest
-    perigee that meets the limit is known to 0.1 km (the lifetime grows with perigee height at
-    fixed apogee), and the burn is the first burn of ``hohmann_elliptic`` from apogee. No
-    burn when the orbit already decays within the limit. Caution: compliance with a disposal
-    rule is decided by the licensing authority; this is a preliminary estimate with the stated
-    models.
-    """
-    limit = float(lifetime_limit_years)
-    if not (math.isfinite(limit) and limit > 0.0):
-        raise InputError("lifetime_limit_years", lifetime_limit_years, "must be > 0 years")
-    profile = exponential_profile(solar_activity) if density is None else density
-    a = float(np.asarray(elements.a_km))
-    e = float(np.asarray(elements.e))
-    i_deg = float(np.asarray(elements.i_deg))
-    radius = _mean_radius_km(i_deg, body)
-    r_a, r_p = a * (1.0 + e), a * (1.0 - e)
-    b = float(ballistic_coefficient_kg_m2)
-    h_re = float(reentry_altitude_km)
-    before = lifetime_years(
-        elements, ballistic_coefficient_kg_m2=b, solar_activity=solar_activity,
-        reentry_altitude_km=h_re, max_years=max(10.0 * limit, 50.0), body=body, density=density,
-    ).years  # fmt: skip
-    assumptions = {
-        "lifetime_model": "orbitledger.kernel.lifetime, orbit-averaged drag (King-Hele 1987)",
-        "density_model": profile.model,
-        "solar_activity": profile.scenario,
-        "ballistic_coefficient_kg_m2": f"{b:.6g}",
-        "reentry_altitude_km": f"{h_re:g}",
-        "burn": "one retrograde burn at apogee lowering the perigee; apogee unchanged",
-        "search": "batches of candidate perigees integrated at once, to 0.1 km",
-    }
-    if before <= limit:
-        return DisposalPlan(
-            0.0, r_p - radius, r_a - radius, before, before, limit, MappingProxyType(assumptions)
-        )
-    i_rad = math.radians(i_deg)
-
-    def life(r_ps: np.ndarray) -> np.ndarray:
-        return _batch_lifetimes(r_a, r_ps, i_rad, b, profile, radius, h_re, 3.0 * limit, body)
-
-    lo = radius + h_re + 1.0  # decays at once
-    rp_new, after = _perigee_search(life, lo, r_p, before, limit)
-    if rp_new == lo:
-        after = float(life(np.array([lo]))[0])
-    dv = float(hohmann_elliptic(r_a, r_p, rp_new, r_a, body.mu_km3_s2, min_radius_km=0.0).dv1_km_s)
-    return DisposalPlan(
-        dv, rp_new - radius, r_a - radius, before, after, limit, MappingProxyType(assumptions)
-    )
 
 
 @dataclass(frozen=True)

@@ -23,7 +23,11 @@ How it is solved, and why it is fast:
    (re-entry): dq/da = 1 - e - a de/da, de/da = <de/dt> / <da/dt>, in which F and B cancel.
    q varies smoothly and slowly (an eccentric orbit keeps its perigee while the apogee falls),
    so Dormand-Prince 5(4) (Dormand & Prince 1980, J. Comput. Appl. Math. 6, 19-26) takes 10-30
-   steps to 0.5 m, however many years the decay lasts.
+   steps, however many years the decay lasts. Error control (a componentwise tolerance
+   scale, Hairer, Norsett & Wanner, *Solving ODEs I*, 2nd ed., Sec. II.4): 0.2 m on q at
+   the start, growing as rho(q) / rho(q_start) (at most 1000x): a perigee error dq moves the
+   lifetime by about dq / H times the share of it still ahead, and that share falls as
+   1 / rho(q) (our scaling: every step's share of the lifetime error stays near the first's).
 2. **Time by quadrature.** With q(a) known (cubic Hermite between the steps, from q and dq/da
    at each end), the time is t = int B mu / (1e3 F a^2 <rho v^3 (1 - e cos E)>) da, three
    Gauss-Legendre nodes on cells of at most 5 km, all nodes of all orbits in one array pass.
@@ -31,13 +35,13 @@ How it is solved, and why it is fast:
    density that does not change with time one integration serves every ballistic
    coefficient (``orbitledger.kernel.lifetime`` caches it and multiplies the times by B).
 4. **Batches.** Many orbits (e.g. the candidate perigees of a disposal search) are integrated
-   at once with array operations, each with its own step.
+   at once with array operations, each with its own step or (``shared_step``) one for all.
 
 A time-varying density (a solar cycle, a flux table) couples t into the rates: then (q, t) are
 integrated together over a (rtol 1e-8 on t), each orbit stopped at re-entry or at its time
 limit ``t_stop_s``. A circular orbit in a density that does not change with time stays circular
 (de/dt = 0 at e = 0), and its lifetime is one quadrature, ``circular_decay``, over the
-profile's 1-km cells.
+profile's 1-km cells (``orbitledger.kernel.decay_circular``, re-exported here).
 """
 
 from __future__ import annotations
@@ -49,6 +53,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .constants import SECONDS_PER_DAY, TROPICAL_YEAR_DAYS, Body
+from .decay_circular import _GL3_W, _GL3_X, circular_decay
 from .density import DensityProfile
 
 __all__ = ["DecayRun", "circular_decay", "decay_orbits", "eccentric_anomaly_nodes"]
@@ -73,8 +78,6 @@ _Q_ATOL_KM = 2e-4
 _T_RTOL = 1e-8
 _T_ATOL_S = 1.0
 _CELL_KM = 5.0
-_GL3_X = np.array([-math.sqrt(0.6), 0.0, math.sqrt(0.6)])
-_GL3_W = np.array([5.0, 8.0, 5.0]) / 9.0
 
 
 def eccentric_anomaly_nodes(n: int) -> tuple[np.ndarray, np.ndarray]:
@@ -117,6 +120,9 @@ class _Setup:
     mu: float
     w: float
     rule: tuple[np.ndarray, np.ndarray]
+    q_atol: float = _Q_ATOL_KM
+    cell_km: float = _CELL_KM
+    shared_step: bool = False
 
 
 def _means(s: _Setup, a: np.ndarray, e: np.ndarray, t_s: np.ndarray | None):
@@ -159,14 +165,17 @@ def _rates(s: _Setup, a: np.ndarray, y: np.ndarray) -> np.ndarray:
     return np.stack([dq_da, dt_da], axis=1)
 
 
-def _scale(s: _Setup, y0: np.ndarray, y1: np.ndarray) -> np.ndarray:
-    scale = np.full(y0.shape, _Q_ATOL_KM)
+def _scale(s: _Setup, y0: np.ndarray, y1: np.ndarray, ref: np.ndarray) -> np.ndarray:
+    scale = np.empty(y0.shape)
+    grow = np.exp(np.minimum(s.profile.log_density(y0[:, 0] - s.radius) - ref, 6.9))  # item 1
+    scale[:, 0] = s.q_atol * np.maximum(grow, 1.0)
     if y0.shape[1] == 2:
-        scale[:, 1] = _T_ATOL_S + _T_RTOL * np.maximum(np.abs(y0[:, 1]), np.abs(y1[:, 1]))
+        t_rtol = _T_RTOL * s.q_atol / _Q_ATOL_KM
+        scale[:, 1] = _T_ATOL_S + t_rtol * np.maximum(np.abs(y0[:, 1]), np.abs(y1[:, 1]))
     return scale
 
 
-def _step(s, f, a, y, h, k1):
+def _step(s, f, a, y, h, k1, ref):
     """One Dormand-Prince step for each row: (y_new, k7, error norm)."""
     ks = np.empty((7, y.size))
     ks[0] = k1.ravel()
@@ -178,7 +187,7 @@ def _step(s, f, a, y, h, k1):
     ks[6] = f(s, a + h, y_new).ravel()
     err = hc * (_E_ARR @ ks).reshape(y.shape)
     with np.errstate(invalid="ignore"):
-        norm = np.sqrt(np.mean((err / _scale(s, y, y_new)) ** 2, axis=1))
+        norm = np.sqrt(np.mean((err / _scale(s, y, y_new, ref)) ** 2, axis=1))
     finite = np.isfinite(y_new).all(axis=1)
     return y_new, ks[6].reshape(y.shape), np.where(finite, norm, np.inf)
 
@@ -198,14 +207,18 @@ def _integrate(
     k1 = f(s, a, y)
     log = [(np.arange(n), a.copy(), y.copy(), k1.copy())]
     evaluations = n
+    ref = s.profile.log_density(y[:, 0] - s.radius)
     reentered = y[:, 0] <= s.r_re
     # First step: 5 km, or a tenth of the way down to re-entry; the controller adapts it.
     h = -np.minimum(5.0, 0.1 * np.maximum(y[:, 0] - s.r_re, 1e-3))
     active = np.flatnonzero(np.isfinite(k1).all(axis=1) & ~reentered)
+    if s.shared_step and active.size:  # one step for all rows (module docstring, item 4)
+        h[:] = h[active].max()
     while active.size:
         aa, yy, hh, kk = a[active], y[active], h[active], k1[active]
-        y_new, k7, norm = _step(s, f, aa, yy, hh, kk)
+        y_new, k7, norm = _step(s, f, aa, yy, hh, kk, ref[active])
         evaluations += 6 * active.size
+        norm = np.full(norm.size, norm.max()) if s.shared_step else norm
         accept = norm <= 1.0
         factor = np.clip(0.9 * np.where(norm > 0.0, norm, 1e-10) ** -0.2, 0.2, 10.0)
         h[active] = hh * np.where(accept, factor, np.minimum(factor, 0.9))
@@ -217,7 +230,7 @@ def _integrate(
         if cross.any():  # re-entry inside the step: secant on q, then a final, shorter step
             j, ks = acc[cross], rows[cross]
             h_last = hh[j] * (yy[j, 0] - s.r_re) / (yy[j, 0] - y_acc[cross, 0])
-            y_last, k_last, _ = _step(s, f, aa[j], yy[j], h_last, kk[j])
+            y_last, k_last, _ = _step(s, f, aa[j], yy[j], h_last, kk[j], ref[ks])
             evaluations += 6 * j.size
             y_last[:, 0] = s.r_re  # q is all but linear across the step: within 1e-6 km
             a_new[cross], y_acc[cross], k_acc[cross] = aa[j] + h_last, y_last, k_last
@@ -239,48 +252,58 @@ def _integrate(
     return points, reentered, evaluations
 
 
-def _hermite_q(points: tuple, a_nodes: np.ndarray) -> np.ndarray:
-    """q at ``a_nodes`` by cubic Hermite between the accepted points (q and dq/da at each)."""
-    x, q, m = points[0][::-1], points[1][::-1, 0], points[2][::-1, 0]
-    k = np.clip(np.searchsorted(x, a_nodes, side="right") - 1, 0, x.size - 2)
-    h = x[k + 1] - x[k]
-    t = (a_nodes - x[k]) / h
+def _hermite(points: list[tuple], x: np.ndarray, row: np.ndarray) -> np.ndarray:
+    """q of orbit ``row`` at a = ``x``, by cubic Hermite between its accepted points (q and
+    dq/da at each), for all orbits in one pass: each orbit's points, in increasing a, take
+    keys row * span + a, so that one sorted search finds every interval."""
+    size = np.array([p[0].size for p in points])
+    first = np.concatenate(([0], np.cumsum(size)[:-1]))
+    xs = np.concatenate([p[0][::-1] for p in points])
+    qs = np.concatenate([p[1][::-1, 0] for p in points])
+    ms = np.concatenate([p[2][::-1, 0] for p in points])
+    low, span = xs.min(), xs.max() - xs.min() + 1.0
+    owner = np.repeat(np.arange(size.size), size)
+    k = np.searchsorted(owner * span + (xs - low), row * span + (x - low), side="right") - 1
+    k = np.clip(k, first[row], first[row] + np.maximum(size[row] - 2, 0))
+    k1 = np.minimum(k + 1, xs.size - 1)
+    h = np.where(size[row] > 1, xs[k1] - xs[k], 1.0)
+    t = np.where(size[row] > 1, (x - xs[k]) / h, 0.0)
     return (
-        (2 * t**3 - 3 * t**2 + 1) * q[k]
-        + (t**3 - 2 * t**2 + t) * h * m[k]
-        + (-2 * t**3 + 3 * t**2) * q[k + 1]
-        + (t**3 - t**2) * h * m[k + 1]
+        (2 * t**3 - 3 * t**2 + 1) * qs[k]
+        + (t**3 - 2 * t**2 + t) * h * ms[k]
+        + (-2 * t**3 + 3 * t**2) * qs[k1]
+        + (t**3 - t**2) * h * ms[k1]
     )
 
 
 def _times(s: _Setup, points: list[tuple]):
     """Time at the cell edges of every orbit by Gauss-Legendre quadrature of dt/da, all
     orbits in one array pass: per orbit (a_edges, e_edges, t_edges)."""
-    edges_all, nodes_all, q_all = [], [], []
-    for pts in points:
-        a0, a1 = pts[0][0], pts[0][-1]
-        n_cells = max(1, math.ceil((a0 - a1) / _CELL_KM))
-        edges = np.linspace(a0, a1, n_cells + 1)
-        mid, half = 0.5 * (edges[:-1] + edges[1:]), 0.5 * (edges[1:] - edges[:-1])
-        nodes = (mid[:, None] + half[:, None] * _GL3_X).ravel()
-        where = np.concatenate((nodes, edges))
-        q = _hermite_q(pts, where) if pts[0].size > 1 else np.full(where.size, pts[1][0, 0])
-        edges_all.append(edges)
-        nodes_all.append(nodes)
-        q_all.append(q)
-    nodes = np.concatenate(nodes_all)
-    q_nodes = np.concatenate([q[: nd.size] for q, nd in zip(q_all, nodes_all, strict=True)])
+    n = len(points)
+    a0 = np.array([p[0][0] for p in points])
+    a1 = np.array([p[0][-1] for p in points])
+    cells = np.maximum(1, np.ceil((a0 - a1) / s.cell_km).astype(np.intp))
+    row_e, row_c = np.repeat(np.arange(n), cells + 1), np.repeat(np.arange(n), cells)
+    first_e = np.concatenate(([0], np.cumsum(cells + 1)[:-1]))
+    j = np.arange(row_e.size) - first_e[row_e]
+    edges = a0[row_e] + (a1 - a0)[row_e] * (j / cells[row_e])
+    left = np.flatnonzero(j < cells[row_e])  # each cell's edge at the larger a
+    mid, half = 0.5 * (edges[left] + edges[left + 1]), 0.5 * (edges[left] - edges[left + 1])
+    nodes = (mid[:, None] - half[:, None] * _GL3_X).ravel()
+    q_nodes = _hermite(points, nodes, np.repeat(row_c, 3))
+    e_edges = _eccentricity(edges, _hermite(points, edges, row_e))
     e = _eccentricity(nodes, q_nodes)
     i_a, _ = _means(s, nodes, e, None)
     with np.errstate(divide="ignore", over="ignore"):
         dt_da = s.mu * s.b / (1e3 * _rotation(s, nodes, e) * nodes * nodes * i_a)
-    out, start = [], 0
-    for edges, nd, q in zip(edges_all, nodes_all, q_all, strict=True):
-        cells = (dt_da[start : start + nd.size].reshape(-1, 3) @ _GL3_W) * np.diff(-edges) / 2.0
-        start += nd.size
-        t = np.concatenate(([0.0], np.cumsum(cells)))
-        out.append((edges, _eccentricity(edges, q[nd.size :]), t))
-    return out
+    cum = np.cumsum((dt_da.reshape(-1, 3) @ _GL3_W) * half)
+    before = np.concatenate(([0.0], cum))[np.concatenate(([0], np.cumsum(cells)))[row_c]]
+    t = np.zeros(edges.size)
+    t[left + 1] = cum - before
+    return [
+        (edges[lo:hi], e_edges[lo:hi], t[lo:hi])
+        for lo, hi in zip(first_e, first_e + cells + 1, strict=True)
+    ]
 
 
 def decay_orbits(
@@ -295,6 +318,9 @@ def decay_orbits(
     body: Body,
     t_stop_s: float | np.ndarray = math.inf,
     history: bool = False,
+    q_atol_km: float = _Q_ATOL_KM,
+    cell_km: float = _CELL_KM,
+    shared_step: bool = False,
 ) -> DecayRun:
     """Integrate a batch of orbits down to re-entry (perigee height ``reentry_altitude_km``
     above ``radius_km``) or to ``t_stop_s``, whichever comes first. Method: module docstring.
@@ -302,8 +328,9 @@ def decay_orbits(
     Given initial mean a (km) and e (arrays of one shape (n,), or scalars), inclination i
     (rad), B = m / (Cd A) (kg/m^2), the density profile (time origin at the start), the
     reference radius, the re-entry height, the body (mu, rotation rate) and the time limit (s;
-    scalar or one per orbit). Orbits already at or below the re-entry perigee are reported
-    re-entered at t = 0.
+    scalar or one per orbit). Orbits at or below the re-entry perigee re-enter at t = 0.
+    ``q_atol_km`` (q's starting tolerance; t's scales with it) and ``cell_km`` (time cells)
+    loosen a rough look; ``shared_step``: module docstring, item 4.
     """
     a0 = np.atleast_1d(np.asarray(a0_km, dtype=float))
     e_start = np.broadcast_to(np.asarray(e0, dtype=float), a0.shape)
@@ -317,7 +344,8 @@ def decay_orbits(
     swing = float(np.max(a0 * e_start / scale_km)) if n else 0.0
     rule = _RULES[32 if swing <= 2.0 else 64 if swing <= 8.0 else 128]
     s = _Setup(float(ballistic_coefficient_kg_m2), math.cos(i_rad), radius_km, r_re, profile,
-               body.mu_km3_s2, body.rotation_rate_rad_s, rule)  # fmt: skip
+               body.mu_km3_s2, body.rotation_rate_rad_s, rule, q_atol_km, cell_km,
+               shared_step)  # fmt: skip
     timed = profile.time_varying
     y0 = np.stack([q0, np.zeros(n)], axis=1) if timed else q0[:, None]
     points, reentered, evaluations = _integrate(s, a0, y0, stop)
@@ -336,45 +364,3 @@ def decay_orbits(
     a_end = np.array([r[0][-1] for r in runs])
     e_end = np.array([r[1][-1] for r in runs])
     return DecayRun(reentered, t_end, a_end, e_end, tuple(runs) if history else (), evaluations)
-
-
-def circular_decay(
-    a0_km: float,
-    *,
-    i_rad: float,
-    ballistic_coefficient_kg_m2: float,
-    profile: DensityProfile,
-    radius_km: float,
-    reentry_altitude_km: float,
-    body: Body,
-) -> tuple[np.ndarray, np.ndarray]:
-    """Decay of a circular orbit in a density that does not change with time, by quadrature.
-
-    Returns (a_km, t_s): the semi-major axis from ``a0_km`` down to the re-entry radius at
-    the profile's cell edges, and the time (s) at which the orbit passes each, from 0 at
-    ``a0_km``; the last time is the lifetime. T = int B / (1e3 F rho(a - R) sqrt(mu a)) da
-    (the circular case of the rates in the module docstring: v^2 = mu / a), three
-    Gauss-Legendre nodes per cell of the profile (ln rho is linear in each, so the rule is
-    exact to about 1e-9).
-    """
-    mu, w = body.mu_km3_s2, body.rotation_rate_rad_s
-    r_re = radius_km + float(reentry_altitude_km)
-    if a0_km <= r_re:
-        return np.array([a0_km]), np.zeros(1)
-    lo = (r_re - radius_km - profile.h0_km) / profile.dh_km
-    hi = (a0_km - radius_km - profile.h0_km) / profile.dh_km
-    inner = np.arange(math.floor(lo) + 1, math.ceil(hi))
-    inner_a = radius_km + profile.h0_km + profile.dh_km * inner
-    inner_a = inner_a[(inner_a > r_re) & (inner_a < a0_km)]
-    edges = np.concatenate(([a0_km], inner_a[::-1], [r_re]))
-    mid, half = 0.5 * (edges[:-1] + edges[1:]), 0.5 * (edges[:-1] - edges[1:])
-    nodes = mid[:, None] + half[:, None] * _GL3_X
-    rotation = (1.0 - nodes * w * math.cos(i_rad) / np.sqrt(mu / nodes)) ** 2
-    with np.errstate(over="ignore"):
-        dt_da = (
-            ballistic_coefficient_kg_m2
-            * np.exp(-profile.log_density(nodes - radius_km))
-            / (1e3 * rotation * np.sqrt(mu * nodes))
-        )
-    cell_t = (dt_da @ _GL3_W) * half
-    return edges, np.concatenate(([0.0], np.cumsum(cell_t)))
