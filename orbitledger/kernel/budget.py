@@ -109,7 +109,7 @@ def drag_makeup_dv_km_s_per_year(
     v = np.sqrt(body.mu_km3_s2 / a * (1.0 + e * cos_e) / (1.0 - e * cos_e))  # km/s
     h = r - _mean_radius_km(i_deg, body)
     rho = density_kg_m3(h, solar_activity) if density is None else density.density_kg_m3(h)
-    factor = 1.0
+    factor: float | np.ndarray = 1.0
     if rotating_atmosphere:
         factor = (1.0 - r * body.rotation_rate_rad_s * math.cos(math.radians(i_deg)) / v) ** 2
     decel_m_s2 = 0.5 * rho * (v * 1000.0) ** 2 * factor / b
