@@ -205,3 +205,23 @@ def test_the_one_time_stamp_parser_takes_only_what_utc_now_writes():
                   "2026-03-01T12:30:05.\u0665Z", "2026-03-01T12:30:05.25"):  # fmt: skip
         with pytest.raises(ValueError):
             parse_utc_stamp(other, fractions=True)
+
+
+PASS_MODULES = ("orbitledger.kernel.passes", "orbitledger.kernel.sites")
+
+
+def test_a_pass_record_is_built_in_one_place():
+    # kernel.passes.build_passes makes every Pass (station passes and terrain-masked sites);
+    # kernel.passes.culminations refines the maximum elevation of both.
+    makers = set()
+    for module, tree in TREES.items():
+        for node in ast.walk(tree):
+            if isinstance(node, ast.FunctionDef):
+                for call in ast.walk(node):
+                    name = ast.unparse(call.func) if isinstance(call, ast.Call) else ""
+                    if name == "Pass" or (name == "refine_maxima" and module in PASS_MODULES):
+                        makers.add((module, node.name, name))
+    assert makers == {
+        ("orbitledger.kernel.passes", "build_passes", "Pass"),
+        ("orbitledger.kernel.passes", "culminations", "refine_maxima"),
+    }
