@@ -24,8 +24,10 @@ from __future__ import annotations
 
 import math
 import re
-from datetime import datetime, timezone
+from datetime import datetime
 from typing import Any
+
+from .ledger_parts import parse_utc_stamp
 
 __all__ = [
     "UNSET",
@@ -106,10 +108,6 @@ def display_value(value: Any, unit: str = "", built_utc: str | None = None) -> s
     return _plain(value)
 
 
-def _parse_utc(text: str) -> datetime:
-    return datetime.fromisoformat(text.replace("Z", "+00:00")).astimezone(timezone.utc)
-
-
 def _add_years(when: datetime, years: int) -> datetime:
     try:
         return when.replace(year=when.year + years)
@@ -120,7 +118,8 @@ def _add_years(when: datetime, years: int) -> datetime:
 def _beyond_years(a: str, b: str, years: int) -> bool:
     """``a`` lies more than ``years`` calendar years before or after ``b`` (exact, no floats)."""
     try:
-        when, built = _parse_utc(a), _parse_utc(b)
+        when = parse_utc_stamp(a, fractions=True)
+        built = parse_utc_stamp(b, fractions=True)
     except ValueError:
         return False
     try:

@@ -43,10 +43,23 @@ def utc_now() -> str:
     return datetime.now(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
 
 
-def parse_utc_stamp(text: Any) -> datetime:
+def parse_utc_stamp(text: Any, *, fractions: bool = False) -> datetime:
     """A time stamp as :func:`utc_now` writes it (``YYYY-MM-DDTHH:MM:SSZ``: UTC, no other zone
-    offset, whole seconds) as an aware UTC datetime; ValueError for anything else."""
-    return datetime.strptime(str(text), "%Y-%m-%dT%H:%M:%SZ").replace(tzinfo=timezone.utc)
+    offset, whole seconds) as an aware UTC datetime; ValueError for anything else.
+
+    With ``fractions``, an instant as the kernel writes one (``utc_iso``) may also carry a
+    decimal fraction of a second (``2031-05-02T06:07:08.125Z``; digits past the microsecond,
+    which a datetime cannot hold, are dropped). The zone is ``Z`` either way.
+    """
+    text = str(text)
+    whole, dot, rest = text.partition(".")
+    if not (fractions and dot):
+        return datetime.strptime(text, "%Y-%m-%dT%H:%M:%SZ").replace(tzinfo=timezone.utc)
+    digits = rest[:-1]
+    if not (rest.endswith("Z") and digits.isascii() and digits.isdigit()):
+        raise ValueError(f"{text!r} is not a UTC instant YYYY-MM-DDTHH:MM:SS[.fff]Z")
+    stamp = parse_utc_stamp(whole + "Z")
+    return stamp.replace(microsecond=int(digits[:6].ljust(6, "0")))
 
 
 def sha256_hex(data: bytes) -> str:

@@ -192,3 +192,21 @@ def test_any_station_adds_passes_but_unions_contact_time() -> None:
     stations = [by["Harrow Fell"], by["Kuru Ridge"]]
     assert by[ANY_STATION].passes == sum(d.passes for d in stations)
     assert by[ANY_STATION].contact_min < sum(d.contact_min for d in stations)
+
+
+def test_culminations_find_the_vertex_or_the_higher_end() -> None:
+    # f(t) = 10 - (t - t0)^2 has its maximum 10 at t0 (the vertex of a parabola); a pass cut by
+    # the window (the maximum outside [rise, set]) or a flat one keeps its higher end.
+    from orbitledger.kernel.passes import culminations
+
+    t0 = np.array([3.3, 7.0, 0.0, 0.0])
+
+    def f(t: np.ndarray, ch: np.ndarray) -> np.ndarray:
+        return np.where(ch == 3, 1.0, 10.0 - (t - t0[ch]) ** 2)
+
+    rise, mid, end = np.array([0.0, 0.0, 2.0, 0.0]), np.array([3.0, 6.5, 3.0, 4.0]), np.full(4, 8.0)
+    t_max, e_max = culminations(f, rise, mid, end, np.arange(4), 1e-6)
+    np.testing.assert_allclose(t_max[:2], t0[:2], atol=1e-5)
+    np.testing.assert_allclose(e_max[:2], 10.0, atol=1e-9)
+    assert (t_max[2], e_max[2]) == (2.0, 6.0)  # falling from its rise: the rise
+    assert (t_max[3], e_max[3]) == (0.0, 1.0)  # flat: no bracket, the first end

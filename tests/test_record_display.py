@@ -98,6 +98,10 @@ BUILT = "2026-12-03T13:00:00Z"
         ("2023-12-03T12:59:59Z", "2023-12-03"),  # more than three years before
         ("2041-06-30T23:59:59.999999Z", "2041-06-30"),  # its own day, not the next one
         ("2027-06-30T23:59:59Z", "2027-06-30T23:59:59Z"),  # near: to the second
+        ("2029-12-03T13:00:00.5Z", "2029-12-03"),  # half a second past three years
+        ("2029-12-03T13:00:00.000Z", "2029-12-03T13:00:00.000Z"),  # exactly three years
+        ("2023-12-03T12:59:59.999Z", "2023-12-03"),  # a millisecond more than three years before
+        ("2023-12-03T13:00:00.0000001Z", "2023-12-03T13:00:00.0000001Z"),  # past the us: dropped
     ],
 )
 def test_far_dates_show_their_calendar_day(value, shown):

@@ -44,7 +44,9 @@ HOMES: dict[str, tuple[str, dict[str, set[str]]]] = {
         {"orbitledger.reporting.ledger_parts": {"utc_now"}},
     ),
     "UTC time stamp parser": (
-        r"parse_utc_stamp|parse_stamp|parse_time_utc|stamp_to_datetime",
+        # reporting.display kept its own ``_parse_utc`` (datetime.fromisoformat) until it
+        # took parse_utc_stamp(fractions=True)
+        r"parse_utc_stamp|parse_stamp|parse_time_utc|stamp_to_datetime|^_parse_utc$|_iso_utc$",
         {"orbitledger.reporting.ledger_parts": {"parse_utc_stamp"}},
     ),
     "unit suffix of a field name": (
@@ -73,6 +75,10 @@ CALL_HOMES = {
     # The record's time stamps (YYYY-MM-DDTHH:MM:SSZ) are read in one place.
     "datetime.strptime": {"orbitledger.reporting.ledger_parts"},
     "dt.datetime.strptime": {"orbitledger.reporting.ledger_parts"},
+    # ... and nowhere through datetime's own ISO parser (it takes any zone offset)
+    "datetime.fromisoformat": set(),
+    "dt.datetime.fromisoformat": set(),
+    "_dt.datetime.fromisoformat": set(),
 }
 TQDM_HOMES = {"orbitledger.progress"}
 
@@ -184,3 +190,38 @@ def test_the_one_time_stamp_parser_takes_only_what_utc_now_writes():
     for other in ("2026-03-01T12:30:05+01:00", "2026-03-01 12:30:05", None, "2026-03-01T12:30:05"):
         with pytest.raises(ValueError):
             parse_utc_stamp(other)
+        with pytest.raises(ValueError):
+            parse_utc_stamp(other, fractions=True)
+    # Instants with a fraction (the kernel's utc_iso, records' results) only when asked for;
+    # the zone is Z either way (RFC 3339 section 5.6 time-secfrac; offsets stay refused).
+    with pytest.raises(ValueError):
+        parse_utc_stamp("2026-03-01T12:30:05.25Z")
+    assert parse_utc_stamp("2026-03-01T12:30:05.25Z", fractions=True) == datetime(
+        2026, 3, 1, 12, 30, 5, 250_000, tzinfo=timezone.utc
+    )
+    assert parse_utc_stamp("2026-03-01T12:30:05.1234567Z", fractions=True).microsecond == 123456
+    assert parse_utc_stamp(now, fractions=True) == parse_utc_stamp(now)
+    for other in ("2026-03-01T12:30:05.25+01:00", "2026-03-01T12:30:05.Z", "2026-03-01T12:30:05.2x5Z",
+                  "2026-03-01T12:30:05.\u0665Z", "2026-03-01T12:30:05.25"):  # fmt: skip
+        with pytest.raises(ValueError):
+            parse_utc_stamp(other, fractions=True)
+
+
+PASS_MODULES = ("orbitledger.kernel.passes", "orbitledger.kernel.sites")
+
+
+def test_a_pass_record_is_built_in_one_place():
+    # kernel.passes.build_passes makes every Pass (station passes and terrain-masked sites);
+    # kernel.passes.culminations refines the maximum elevation of both.
+    makers = set()
+    for module, tree in TREES.items():
+        for node in ast.walk(tree):
+            if isinstance(node, ast.FunctionDef):
+                for call in ast.walk(node):
+                    name = ast.unparse(call.func) if isinstance(call, ast.Call) else ""
+                    if name == "Pass" or (name == "refine_maxima" and module in PASS_MODULES):
+                        makers.add((module, node.name, name))
+    assert makers == {
+        ("orbitledger.kernel.passes", "build_passes", "Pass"),
+        ("orbitledger.kernel.passes", "culminations", "refine_maxima"),
+    }

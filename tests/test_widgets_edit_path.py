@@ -204,6 +204,36 @@ def test_allowance_table_edits_the_budget(starter_path: Path) -> None:
     assert load_case(starter_path).budget.allowances[0].dv_km_s == 0.02
 
 
+def test_allowance_rows_commit_like_station_rows(starter_path: Path) -> None:
+    # Both tables' rows come from the one plain row of widgets.tables (the one home of a row's
+    # commit): typed cells wait for the debounce, a checkbox commits at once, a refused cell
+    # is outlined and its column named while the file keeps the last valid list.
+    from orbitledger.widgets.plan_tables import AllowanceTable
+    from orbitledger.widgets.tables import ListTable, StationTable
+
+    assert AllowanceTable._row_widgets is ListTable._row_widgets is StationTable._row_widgets
+    loop = FakeLoop()
+    editor = CaseEditor(orbitledger.open_case(starter_path), window_results=False, figures=[])
+    editor._debounce.loop = loop
+    table = editor.allowances
+    dv = table.cells[1]["dv_km_s"]
+    assert dv.tooltip == "budget.allowances.1.dv_km_s (delta-v (km/s))"
+    assert table.cells[1]["per_year"].value is True and table.cells[0]["margin"].value is False
+    dv.value = "0.0"
+    dv.value = "0.002"
+    loop.advance(0.1)
+    assert load_case(starter_path).budget.allowances[1].dv_km_s == 0.0005  # not yet committed
+    table.cells[1]["margin"].value = True  # a checkbox: the row commits at once, typed cell too
+    saved = load_case(starter_path).budget.allowances
+    assert saved[1].margin is True and saved[1].dv_km_s == 0.002 and saved[1].per_year is True
+    assert saved[0].margin is False
+    dv.value = "abc"
+    editor._debounce.flush()  # Enter in the cell
+    assert "ol-invalid-cell" in dv._dom_classes
+    assert table.errors[1].value.startswith("allowance 2, delta-v (km/s): ")
+    assert load_case(starter_path).budget.allowances[1].dv_km_s == 0.002  # kept
+
+
 # Which way is better for every result that gets a star (common practice in mission design:
 # less delta-v and propellant, more spare propellant and contact, less eclipse and gap).
 EXPECTED_DIRECTIONS = {

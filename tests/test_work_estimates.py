@@ -219,3 +219,36 @@ def test_a_numerical_window_ten_years_after_the_epoch_names_the_start(tmp_path, 
     line = _refused(capsys, ["passes", str(path)], path)
     assert "window.start_utc = '2037-03-21T10:30:00Z': over 3654 days from the epoch" in line, line
     assert "start the window nearer the epoch" in line
+
+
+def test_a_sweep_result_over_the_memory_limit_is_refused_with_the_estimate(
+    tmp_path, capsys, monkeypatch
+):
+    path = _write(tmp_path, copy.deepcopy(STARTER_DATA))
+    out = tmp_path / "out.csv"
+    big = ["sweep", str(path), "--vary", "orbit.altitude_km=400:600:0.1",
+           "--vary", "orbit.i_deg=90:100:0.005", "--out", str(out)]  # fmt: skip
+    line = _refused(capsys, big, path)
+    # 2,001 x 2,001 cases, 29 columns of float64 held three times over:
+    # 4,004,001 x 29 x 8 x 3 bytes = 2.79e9 bytes = 2.6 GiB (plain arithmetic).
+    assert 4_004_001 * 29 * 8 * 3 / 2**30 == pytest.approx(2.6, abs=0.005)
+    assert "vary = '4,004,001 cases': at 29 columns a case would need 2.6 GiB" in line, line
+    assert f"(limit 512 MiB, {MEMORY_LIMIT_ENV}); coarsen the grid" in line, line
+    assert not out.exists()
+    small = ["sweep", str(path), "--vary", "orbit.altitude_km=500:600:50", "--out", str(out)]
+    assert main(small) == 0 and out.exists()  # 3 cases: 2,016 bytes, well under 512 MiB
+    capsys.readouterr()
+    out.unlink()
+    monkeypatch.setenv(MEMORY_LIMIT_ENV, "1KiB")  # the same budget as every heavy verb
+    line = _refused(capsys, small, path)
+    # one input: 28 columns; 3 x 28 x 8 x 3 = 2,016 bytes = 1.97 KiB (plain arithmetic)
+    assert 3 * 28 * 8 * 3 / 2**10 == pytest.approx(1.97, abs=0.005)
+    assert "at 28 columns a case would need 1.97 KiB for the trade study's results" in line
+    assert f"(limit 1 KiB, {MEMORY_LIMIT_ENV})" in line, line
+    assert not out.exists()
+    monkeypatch.setenv(MEMORY_LIMIT_ENV, "2GiB")
+    assert f"(limit 2 GiB, {MEMORY_LIMIT_ENV})" in _refused(capsys, big, path)
+    monkeypatch.setenv(MEMORY_LIMIT_ENV, "3GiB")  # checked, not built: an estimate alone
+    from orbitledger.trade.evaluate import refuse_if_too_large
+
+    refuse_if_too_large(4_004_001, 2, ("orbit", "j2"))

@@ -26,34 +26,7 @@ class AllowanceTable(ListTable):
         ("per_year", "every year", "6em"),
         ("margin", "with margin", "6em"),
     )
-
-    def _row_widgets(self, index: int, entry: dict[str, Any]):
-        cells: dict[str, w.Widget] = {
-            key: text_cell("", width, f"{self.path}.{index}.{key}")
-            for key, _text, width in self.columns[:2]
-        }
-        for key, text, width in self.columns[2:]:  # the header names them: no label beside
-            cells[key] = w.Checkbox(indent=False, layout=w.Layout(width=width, min_width=width))
-            cells[key].tooltip = f"{self.path}.{index}.{key} ({text})"
-
-        def write(entry: dict[str, Any]) -> None:
-            cells["name"].value = str(entry.get("name", ""))
-            cells["dv_km_s"].value = _format_number(entry.get("dv_km_s"))
-            cells["per_year"].value = bool(entry.get("per_year"))
-            cells["margin"].value = bool(entry.get("margin"))
-
-        def read() -> dict[str, Any]:
-            row = dict(self.entries[index])
-            row["name"] = cells["name"].value.strip()
-            row["dv_km_s"] = _parse_number(
-                f"{self.path}.{index}.dv_km_s", cells["dv_km_s"].value, optional=False
-            )
-            row["per_year"] = bool(cells["per_year"].value)
-            row["margin"] = bool(cells["margin"].value)
-            return row
-
-        write(entry)
-        return cells, read, write
+    checks = ("per_year", "margin")  # the plain row of ``tables``: name, delta-v, two checkboxes
 
     def _new_entry(self) -> dict[str, Any]:
         return {"name": f"allowance {len(self.entries) + 1}", "dv_km_s": 0.0}

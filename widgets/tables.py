@@ -59,6 +59,8 @@ class ListTable:
     noun = "row"
     # (entry key, header text, width): one per cell, in order.
     columns: Sequence[tuple[str, str, str]] = ()
+    # Entry keys shown as checkboxes by the plain row (``_row_widgets``).
+    checks: Sequence[str] = ()
 
     def __init__(
         self,
@@ -209,8 +211,36 @@ class ListTable:
     def _new_entry(self) -> dict[str, Any]:  # pragma: no cover - abstract
         raise NotImplementedError
 
-    def _row_widgets(self, index: int, entry: dict[str, Any]):  # pragma: no cover - abstract
-        raise NotImplementedError
+    def _row_widgets(self, index: int, entry: dict[str, Any]):
+        """A plain row (a table with other cells overrides this): ``name`` a text cell, each of
+        ``checks`` a checkbox, every other column a number. Returns the cells by entry key, the
+        reader (the entry with the cells' values; a bad number raises FieldParseError naming
+        ``PATH.INDEX.KEY``) and the writer (the cells take an entry's values)."""
+        cells = plain_cells(self.columns, self.path, index, self.checks)
+
+        def write(entry: dict[str, Any]) -> None:
+            for key, cell in cells.items():
+                if key == "name":
+                    cell.value = str(entry.get("name", ""))
+                elif key in self.checks:
+                    cell.value = bool(entry.get(key))
+                else:
+                    cell.value = _format_number(entry.get(key))
+
+        def read() -> dict[str, Any]:
+            row = dict(self.entries[index])
+            for key, cell in cells.items():
+                if key == "name":
+                    row[key] = cell.value.strip()
+                elif key in self.checks:
+                    row[key] = bool(cell.value)
+                else:
+                    where = f"{self.path}.{index}.{key}"
+                    row[key] = _parse_number(where, cell.value, optional=False)
+            return row
+
+        write(entry)
+        return cells, read, write
 
 
 def _row_index(prefix: str, path: str | None) -> int | None:
@@ -222,10 +252,20 @@ def _row_index(prefix: str, path: str | None) -> int | None:
     return int(head) if head.isdigit() else None
 
 
-def cells_for(columns: Sequence[tuple[str, str, str]], path: str, index: int) -> dict[str, w.Text]:
-    return {
-        key: text_cell("", width, f"{path}.{index}.{key} ({text})") for key, text, width in columns
-    }
+def plain_cells(
+    columns: Sequence[tuple[str, str, str]], path: str, index: int, checks: Sequence[str] = ()
+) -> dict[str, w.Widget]:
+    """The cells of row ``index``: a checkbox for each of ``checks`` (the header names it: no
+    label beside), a text cell for every other column; each tooltip names its path."""
+    cells: dict[str, w.Widget] = {}
+    for key, text, width in columns:
+        tooltip = f"{path}.{index}.{key} ({text})"
+        if key in checks:
+            cells[key] = w.Checkbox(indent=False, layout=w.Layout(width=width, min_width=width))
+            cells[key].tooltip = tooltip
+        else:
+            cells[key] = text_cell("", width, tooltip)
+    return cells
 
 
 class StationTable(ListTable):
@@ -239,26 +279,6 @@ class StationTable(ListTable):
         ("height_km", "height (km)", "8.5em"),
         ("elevation_mask_deg", "mask (deg)", "8.5em"),
     )
-
-    def _row_widgets(self, index: int, entry: dict[str, Any]):
-        cells = cells_for(self.columns, self.path, index)
-
-        def write(entry: dict[str, Any]) -> None:
-            cells["name"].value = str(entry.get("name", ""))
-            for key, cell in cells.items():
-                if key != "name":
-                    cell.value = _format_number(entry.get(key))
-
-        def read() -> dict[str, Any]:
-            row = dict(self.entries[index])
-            row["name"] = cells["name"].value.strip()
-            for key, cell in cells.items():
-                if key != "name":
-                    row[key] = _parse_number(f"stations.{index}.{key}", cell.value, optional=False)
-            return row
-
-        write(entry)
-        return cells, read, write
 
     def _new_entry(self) -> dict[str, Any]:
         taken = {e.get("name") for e in self.entries}

@@ -1,7 +1,7 @@
 """Estimates before work: the memory and the work of an analysis, refused above a stated limit.
 
 Before a window is sampled (passes, eclipses, ground track, ephemeris), a numerical trajectory
-is integrated or a trade study evaluates its cases, the work is estimated from the inputs
+is integrated or a trade study evaluates its cases (and builds its table of results), the work is estimated from the inputs
 alone and refused above the limit with one line giving the estimate, the limit and what to
 change (docs/case-file.md, "Work limits"):
 
@@ -72,6 +72,7 @@ _WHAT = {
     "eclipses": "the eclipse search",
     "numerical": "the numerical propagation",
     "seasons": "the seasons series",
+    "trade": "the trade study's results",
 }
 # The numerical integrator (DOP853, rtol 1e-10) used 5,387 right-hand sides over one day of
 # the 540 km starter orbit (15.2 orbits): about 354 an orbit; 12 a step, about 600 bytes of
@@ -140,12 +141,19 @@ def _count(n: float) -> str:
     return f"{n:,.0f}" if n < 1e7 else f"{n:.3g}"
 
 
-def check_estimate(estimate: Estimate) -> None:
-    """Raise ``InputError`` naming the estimate's field when it is over either limit."""
-    memory, work = memory_limit_bytes(), work_limit()
+def check_estimate(
+    estimate: Estimate, *, memory_limit: float | None = None, limit_name: str = MEMORY_LIMIT_ENV
+) -> None:
+    """Raise ``InputError`` naming the estimate's field when it is over either limit.
+
+    ``memory_limit`` (bytes), when given, stands for ``ORBITLEDGER_MEMORY_LIMIT`` and is named
+    ``limit_name`` in the message (a caller's own argument, such as ``max_memory_bytes``).
+    """
+    memory = memory_limit_bytes() if memory_limit is None else float(memory_limit)
+    work = work_limit()
     if estimate.bytes > memory:
         need = f"{size_text(estimate.bytes)} for {estimate.what}"
-        limit = f"limit {size_text(memory)}, {MEMORY_LIMIT_ENV}"
+        limit = f"limit {size_text(memory)}, {limit_name}"
     elif estimate.evaluations > work:
         need = f"about {_count(estimate.evaluations)} evaluations for {estimate.what}"
         limit = f"limit {_count(work)}, {WORK_LIMIT_ENV}"

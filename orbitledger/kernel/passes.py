@@ -212,39 +212,16 @@ def station_passes(
         if inner.size:
             mid[j] = t[k0 + int(np.argmax(inner))]
     left, right = iv.start_s, iv.end_s
-    f_left, f_mid, f_right = (margin(x, iv.channel) for x in (left, mid, right))
-    proper = (f_mid > f_left) & (f_mid > f_right) & (left < mid) & (mid < right)
-    t_max = np.where(f_left >= f_right, left, right)
-    e_max = np.maximum(f_left, f_right)
-    tm, em = refine_maxima(
-        margin, left[proper], mid[proper], right[proper], iv.channel[proper], tolerance_s
-    )
-    t_max[proper], e_max[proper] = tm, em
-    e_max = e_max + masks[iv.channel]
+    t_max, e_max = culminations(margin, left, mid, right, iv.channel, tolerance_s)
 
-    r_edges, _ = traj.itrf(np.concatenate([left, right]))
-    ch2 = np.concatenate([iv.channel, iv.channel])
-    az = _azimuth_deg(r_edges, sites[ch2], enu[ch2])
-    m = left.size
-    utc1, utc2 = _utc(traj, np.concatenate([left, t_max, right]))
-    stamps = utc_iso(utc1, utc2, decimals=1)
-    passes = [
-        Pass(
-            station=stations[int(iv.channel[j])].name,
-            aos_s=float(left[j]),
-            tmax_s=float(t_max[j]),
-            los_s=float(right[j]),
-            max_elevation_deg=float(e_max[j]),
-            aos_azimuth_deg=float(az[j]),
-            los_azimuth_deg=float(az[m + j]),
-            aos_utc=str(stamps[j]),
-            tmax_utc=str(stamps[m + j]),
-            los_utc=str(stamps[2 * m + j]),
-            starts_in_view=bool(iv.start_clipped[j]),
-            ends_in_view=bool(iv.end_clipped[j]),
-        )
-        for j in range(m)
-    ]
+    def azimuth(times: np.ndarray, ch: np.ndarray) -> np.ndarray:
+        r, _ = traj.itrf(times)
+        return _azimuth_deg(r, sites[ch], enu[ch])
+
+    passes = build_passes(
+        traj, [s.name for s in stations], iv.channel, left, t_max, right,
+        e_max + masks[iv.channel], azimuth, iv.start_clipped, iv.end_clipped,
+    )  # fmt: skip
     passes.sort(key=lambda p: (p.aos_s, p.station))
     daily, gaps = _daily_statistics(traj, stations, passes, duration_s)
     return PassSearch(
@@ -259,6 +236,61 @@ def station_passes(
         utc_tai_extrapolated=traj.start.utc_tai_extrapolated,
         notes=("geometric elevation, no refraction; WGS-84 station coordinates",),
     )
+
+
+def culminations(
+    f, rise_s: np.ndarray, mid_s: np.ndarray, set_s: np.ndarray, ch: np.ndarray, tol: float
+) -> tuple[np.ndarray, np.ndarray]:
+    """Time (s) and value of the maximum of ``f(t, ch)`` in each pass [rise_s, set_s]: refined
+    by bounded minimisation (``events.refine_maxima``) from ``mid_s`` where (rise, mid, set) is
+    a bracket (mid inside, f(mid) at least f at both ends and above one: scipy's
+    ``find_minimum`` needs one strict), else the higher end (a pass cut at the window edge)."""
+    f_rise, f_mid, f_set = (f(x, ch) for x in (rise_s, mid_s, set_s))
+    inner = (rise_s < mid_s) & (mid_s < set_s) & (f_mid >= f_rise) & (f_mid >= f_set)
+    inner &= (f_mid > f_rise) | (f_mid > f_set)
+    t_max = np.where(f_rise >= f_set, rise_s, set_s)
+    e_max = np.maximum(f_rise, f_set)
+    tm, em = refine_maxima(f, rise_s[inner], mid_s[inner], set_s[inner], ch[inner], tol)
+    t_max[inner], e_max[inner] = tm, em
+    return t_max, e_max
+
+
+def build_passes(
+    traj: Trajectory,
+    names: Sequence[str],
+    ch: np.ndarray,
+    aos_s: np.ndarray,
+    tmax_s: np.ndarray,
+    los_s: np.ndarray,
+    max_elevation_deg: np.ndarray,
+    azimuth_deg,
+    starts_in_view: Sequence[bool],
+    ends_in_view: Sequence[bool],
+) -> list[Pass]:
+    """``Pass`` records from each pass's rise (AOS), culmination and set (LOS), in s after the
+    trajectory's start, seen from station ``names[ch[j]]``: the azimuths at AOS and LOS from
+    ``azimuth_deg(times, ch)`` (one call for every edge), UTC stamps to 0.1 s (one call)."""
+    m = len(aos_s)
+    az = azimuth_deg(np.concatenate([aos_s, los_s]), np.concatenate([ch, ch]))
+    utc1, utc2 = _utc(traj, np.concatenate([aos_s, tmax_s, los_s]))
+    stamps = utc_iso(utc1, utc2, decimals=1)
+    return [
+        Pass(
+            station=names[int(ch[j])],
+            aos_s=float(aos_s[j]),
+            tmax_s=float(tmax_s[j]),
+            los_s=float(los_s[j]),
+            max_elevation_deg=float(max_elevation_deg[j]),
+            aos_azimuth_deg=float(az[j]),
+            los_azimuth_deg=float(az[m + j]),
+            aos_utc=str(stamps[j]),
+            tmax_utc=str(stamps[m + j]),
+            los_utc=str(stamps[2 * m + j]),
+            starts_in_view=bool(starts_in_view[j]),
+            ends_in_view=bool(ends_in_view[j]),
+        )
+        for j in range(m)
+    ]
 
 
 def _utc(traj: Trajectory, offsets: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -39,7 +39,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from .errors import InputError
-from .events import refine_crossings, refine_maxima
+from .events import refine_crossings
 from .passes import (
     ANY_STATION,
     Pass,
@@ -48,12 +48,12 @@ from .passes import (
     _azimuth_deg,
     _daily_statistics,
     _elevation_deg,
-    _utc,
     _views,
+    build_passes,
+    culminations,
     station_passes,
 )
 from .propagation import Trajectory
-from .timescales import utc_iso
 
 __all__ = [
     "DailyVolume",
@@ -256,33 +256,12 @@ def _passes_from(geo: _Geometry, rows, tol: float, sample_s: float) -> list[Pass
     best = np.array(
         [t[a + np.argmax(el[a:b])] for a, b in zip(bounds[:-1], bounds[1:], strict=True)]
     )
-    f_lo, f_mid, f_hi = (geo.elevation(x, ch) for x in (lo, best, hi))
-    inner = (best > lo) & (best < hi) & (f_mid >= f_lo) & (f_mid >= f_hi)
-    t_max = np.where(f_lo >= f_hi, lo, hi)
-    e_max = np.maximum(f_lo, f_hi)
-    tm, em = refine_maxima(geo.elevation, lo[inner], best[inner], hi[inner], ch[inner], tol)
-    t_max[inner], e_max[inner] = tm, em
-    _, az = geo.el_az(np.concatenate([lo, hi]), np.concatenate([ch, ch]))
-    u1, u2 = _utc(geo.traj, np.concatenate([lo, t_max, hi]))
-    stamps = utc_iso(u1, u2, decimals=1)
-    m = lo.size
-    return [
-        Pass(
-            station=geo.sites[int(ch[j])].station.name,
-            aos_s=float(lo[j]),
-            tmax_s=float(t_max[j]),
-            los_s=float(hi[j]),
-            max_elevation_deg=float(e_max[j]),
-            aos_azimuth_deg=float(az[j]),
-            los_azimuth_deg=float(az[m + j]),
-            aos_utc=str(stamps[j]),
-            tmax_utc=str(stamps[m + j]),
-            los_utc=str(stamps[2 * m + j]),
-            starts_in_view=rows[j][3],
-            ends_in_view=rows[j][4],
-        )  # fmt: skip
-        for j in range(m)
-    ]
+    t_max, e_max = culminations(geo.elevation, lo, best, hi, ch, tol)
+    return build_passes(
+        geo.traj, [s.station.name for s in geo.sites], ch, lo, t_max, hi, e_max,
+        lambda times, c: geo.el_az(times, c)[1],
+        [r[3] for r in rows], [r[4] for r in rows],
+    )  # fmt: skip
 
 
 def _time_above(g: np.ndarray, dt: np.ndarray) -> float:

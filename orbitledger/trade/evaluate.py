@@ -7,9 +7,9 @@ Dask cluster (``orbitledger.trade.execution``). Each chunk carries the base case
 JSON and its rows of input values, so a worker rebuilds exactly the cases of a local run, and
 the results are identical wherever they are computed.
 
-Before any work, the inputs are checked: the memory the result would need (a sweep that would
-not fit is refused with the number: we refuse rather than stream, so that a result is always
-one DataFrame), and the extreme values of every input through the case model (each corner of
+Before any work, the inputs are checked: the memory the result would need (a study over the
+memory limit of ``analysis.estimates`` is refused with the estimate: we refuse rather than
+stream, so that a result is always one DataFrame), and the extreme values of every input through the case model (each corner of
 the box of inputs, up to six inputs; beyond that each input's extremes alone), so a value
 outside a field's range is refused up front, naming its path.
 """
@@ -70,20 +70,13 @@ def as_case(item: Any) -> Any:
 
 def estimate_bytes(rows: int, input_columns: int, metrics: Sequence[str] | str) -> int:
     """Bytes a result of ``rows`` cases would need while it is built (an upper estimate)."""
+    return rows * _width(input_columns, metrics) * _BYTES_PER_VALUE * _WORKING_COPIES
+
+
+def _width(input_columns: int, metrics: Sequence[str] | str) -> int:
+    """Columns of a result: the inputs, the metrics (by their groups' widths) and one more."""
     names = metrics.split(",") if isinstance(metrics, str) else list(metrics)
-    width = sum(GROUP_WIDTH.get(n.strip(), 1) for n in names) + input_columns + 1
-    return rows * width * _BYTES_PER_VALUE * _WORKING_COPIES
-
-
-def _available_bytes() -> int:
-    try:
-        import psutil
-
-        return int(psutil.virtual_memory().available)
-    except ImportError:  # pragma: no cover - psutil comes with dask.distributed
-        import os
-
-        return int(os.sysconf("SC_AVPHYS_PAGES") * os.sysconf("SC_PAGE_SIZE"))
+    return sum(GROUP_WIDTH.get(n.strip(), 1) for n in names) + input_columns + 1
 
 
 def refuse_if_too_large(
@@ -94,20 +87,26 @@ def refuse_if_too_large(
     *,
     field: str = "vary",
 ) -> None:
-    """Refuse (InputError naming ``field``) a study whose result would not fit in memory.
+    """Refuse (InputError naming ``field``) a study whose result would be over the memory limit.
 
-    The limit is ``max_memory_bytes``, by default half the memory available now.
+    The limit is the one every heavy verb uses (``analysis.estimates``: 512 MiB, or
+    ``ORBITLEDGER_MEMORY_LIMIT``), or ``max_memory_bytes`` when given.
     """
-    need = estimate_bytes(rows, input_columns, metrics)
-    limit = int(max_memory_bytes) if max_memory_bytes is not None else _available_bytes() // 2
-    if need > limit:
-        raise InputError(
-            field,
-            f"{rows:,} cases",
-            f"the results would need about {need / 1e9:.3g} GB, more than the "
-            f"{limit / 1e9:.3g} GB allowed ({'given' if max_memory_bytes else 'half the available memory'}): "
-            "coarsen the grid, vary fewer inputs, or split the study",
-        )
+    from ..analysis.estimates import Estimate, check_estimate
+
+    estimate = Estimate(
+        "trade",
+        estimate_bytes(rows, input_columns, metrics),
+        0.0,
+        field,
+        f"{rows:,} cases",
+        f"at {_width(input_columns, metrics)} columns a case",
+        "coarsen the grid, vary fewer inputs, or split the study",
+    )
+    if max_memory_bytes is None:
+        check_estimate(estimate)
+    else:
+        check_estimate(estimate, memory_limit=max_memory_bytes, limit_name="max_memory_bytes")
 
 
 def _plain(value: float, integer: bool) -> float | int:
