@@ -60,10 +60,16 @@ _READ = """() => {
 
 
 def run(edits: int) -> None:
+    from conftest import jupyter_editor_opener
     from test_browser_editor import editor_page
 
     with tempfile.TemporaryDirectory() as tmp:
-        with editor_page("lab", "lab/tree/starter-editor.ipynb", Path(tmp)) as (page, editor, _):
+        opener = jupyter_editor_opener(Path(tmp))
+        with editor_page("lab", "lab/tree/starter-editor.ipynb", Path(tmp), opener) as (
+            page,
+            editor,
+            _,
+        ):
             editor.scroll_into_view_if_needed()
             time.sleep(2.0)  # the first paint of every figure
             page.evaluate(_SETUP)

@@ -32,7 +32,10 @@ def load_bokehjs() -> None:
     known pitfalls: a BokehModel renders only after BokehJS is there)."""
     from orbitledger.figures.show import ensure_notebook_bokehjs
 
+    from .bokehjs_fixes import install_bokehjs_fixes
+
     ensure_notebook_bokehjs()
+    install_bokehjs_fixes()  # see bokehjs_fixes: no echo of updates, fewer style reads
 
 
 def _children(model: Model) -> Iterator[Model]:
