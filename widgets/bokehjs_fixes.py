@@ -25,7 +25,8 @@ after BokehJS is on the page (the editor's ``load_bokehjs``).
    element's values until the current task ends (the next ``setTimeout(0)``), so a paint reads
    each once; a style changed in a later task is read afresh.
 
-Each fix checks that what it wraps is there and does nothing otherwise (another jupyter_bokeh
+``window.__orbitledger_former_updates = true`` turns both off for the page (the side-by-side
+run of benchmarks/bench_editor_frames.py). Each fix checks that what it wraps is there and does nothing otherwise (another jupyter_bokeh
 or BokehJS): the figures then work as before, only slower. The script goes out in the display
 type of BokehJS's own loader (``application/vnd.bokehjs_load.v0+json``, which jupyter_bokeh's
 renderer runs, so no trusted-JavaScript output is needed; records drop that type, like the
@@ -45,7 +46,9 @@ BOKEHJS_FIXES_JS = r"""
     proto.on_change = function (callback, allow_batches) {
       if (!allow_batches && String(callback).indexOf("_change_event") >= 0) {
         var filtered = function (event) {
-          if (event == null || event.sync !== false) { callback(event); }
+          if (event == null || event.sync !== false || window.__orbitledger_former_updates) {
+            callback(event);
+          }
         };
         return on_change.call(this, filtered, allow_batches);
       }
@@ -63,7 +66,7 @@ BOKEHJS_FIXES_JS = r"""
     var cache = null;
     proto._get_css_value = function (name) {
       var el = this.obj && this.obj.el;
-      if (el == null) { return read.call(this, name); }
+      if (el == null || window.__orbitledger_former_updates) { return read.call(this, name); }
       if (cache === null) {
         cache = new Map();
         setTimeout(function () { cache = null; }, 0);

@@ -29,7 +29,8 @@ from .screendata import line_plans, thin_columns, thin_sources
 __all__ = ["LEAN_UPDATES", "LiveFigure", "load_bokehjs", "sync_model", "walk_models"]
 
 # True: lines thinned to the plot's pixels (screendata) and the page fixes of bokehjs_fixes.
-# False only in benchmarks/bench_editor_frames.py, which times the former updates beside these.
+# False only in benchmarks/bench_editor_frames.py, which times the former updates beside these
+# (read when a figure is made).
 LEAN_UPDATES = True
 
 
@@ -41,8 +42,7 @@ def load_bokehjs() -> None:
     from .bokehjs_fixes import install_bokehjs_fixes
 
     ensure_notebook_bokehjs()
-    if LEAN_UPDATES:
-        install_bokehjs_fixes()  # see bokehjs_fixes: no echo of updates, fewer style reads
+    install_bokehjs_fixes()  # see bokehjs_fixes: no echo of updates, fewer style reads
 
 
 def _children(model: Model) -> Iterator[Model]:
@@ -167,6 +167,7 @@ class LiveFigure:
         self.model: Model | None = None
         self._sources: dict[str, ColumnDataSource] = {}
         self._plans: dict[str, list] = {}  # the lines of each source (screendata.line_plans)
+        self._lean = LEAN_UPDATES
         self.view: Any = None
         self._BokehModel = _batching_bokeh_model(BokehModel)
         self.timings = {"build_s": 0.0, "sync_s": 0.0}
@@ -226,7 +227,7 @@ class LiveFigure:
             return
         t1 = time.perf_counter()
         self.note.value = ""
-        plans = line_plans(fresh) if LEAN_UPDATES else {}
+        plans = line_plans(fresh) if self._lean else {}
         for source in fresh.select({"type": ColumnDataSource}):
             if source.name in plans:  # not yet on screen: no event is sent
                 source.data = thin_columns(source.data, plans[source.name])
