@@ -24,6 +24,12 @@ def jupyter_editor(tmp_path: Path):
     ``app`` is "lab" or "notebook", ``path`` the notebook's URL path under the server, ``root``
     the study folder the server serves. Skips when Chromium or playwright is missing.
     """
+    return jupyter_editor_opener(tmp_path)
+
+
+def jupyter_editor_opener(tmp_path: Path):
+    """The ``jupyter_editor`` fixture's context manager, for a script outside pytest too
+    (benchmarks/bench_editor_frames.py); ``tmp_path`` holds the server's home and artefacts."""
     from test_browser_lab import (
         CHROMIUM,
         Server,

@@ -24,7 +24,14 @@ from bokeh.core.property.descriptors import PropertyDescriptor
 from bokeh.model import Model
 from bokeh.models import ColumnDataSource
 
-__all__ = ["LiveFigure", "load_bokehjs", "sync_model", "walk_models"]
+from .screendata import line_plans, thin_columns, thin_sources
+
+__all__ = ["LEAN_UPDATES", "LiveFigure", "load_bokehjs", "sync_model", "walk_models"]
+
+# True: lines thinned to the plot's pixels (screendata) and the page fixes of bokehjs_fixes.
+# False only in benchmarks/bench_editor_frames.py, which times the former updates beside these
+# (read when a figure is made).
+LEAN_UPDATES = True
 
 
 def load_bokehjs() -> None:
@@ -32,7 +39,10 @@ def load_bokehjs() -> None:
     known pitfalls: a BokehModel renders only after BokehJS is there)."""
     from orbitledger.figures.show import ensure_notebook_bokehjs
 
+    from .bokehjs_fixes import install_bokehjs_fixes
+
     ensure_notebook_bokehjs()
+    install_bokehjs_fixes()  # see bokehjs_fixes: no echo of updates, fewer style reads
 
 
 def _children(model: Model) -> Iterator[Model]:
@@ -156,6 +166,8 @@ class LiveFigure:
         self.note.add_class("ol-note")
         self.model: Model | None = None
         self._sources: dict[str, ColumnDataSource] = {}
+        self._plans: dict[str, list] = {}  # the lines of each source (screendata.line_plans)
+        self._lean = LEAN_UPDATES
         self.view: Any = None
         self._BokehModel = _batching_bokeh_model(BokehModel)
         self.timings = {"build_s": 0.0, "sync_s": 0.0}
@@ -202,7 +214,7 @@ class LiveFigure:
         t0 = time.perf_counter()
         try:
             if self.model is not None and self.data is not None:
-                columns = self.data(case, self.model)
+                columns = thin_sources(self.data(case, self.model), self._plans)
                 t1 = time.perf_counter()
                 if self._update_sources(columns):
                     self.note.value = ""
@@ -215,10 +227,15 @@ class LiveFigure:
             return
         t1 = time.perf_counter()
         self.note.value = ""
+        plans = line_plans(fresh) if self._lean else {}
+        for source in fresh.select({"type": ColumnDataSource}):
+            if source.name in plans:  # not yet on screen: no event is sent
+                source.data = thin_columns(source.data, plans[source.name])
         if self.model is None or not self._hold(lambda: sync_model(self.model, fresh)):
             self.model = fresh
             # Looked up once per model: a model walk costs more than the update itself.
             self._sources = {s.name: s for s in fresh.select({"type": ColumnDataSource}) if s.name}
+            self._plans = plans
             self.view = self._BokehModel(fresh)
             self.widget.children = [self.view, self.note]
         self.timings = {"build_s": t1 - t0, "sync_s": time.perf_counter() - t1}
