@@ -24,6 +24,7 @@ from bokeh.core.property.descriptors import PropertyDescriptor
 from bokeh.model import Model
 from bokeh.models import ColumnDataSource
 
+from .patchpacer import send_paced
 from .screendata import line_plans, thin_columns, thin_sources
 
 __all__ = ["LEAN_UPDATES", "LiveFigure", "load_bokehjs", "sync_model", "walk_models"]
@@ -237,6 +238,7 @@ class LiveFigure:
             self._sources = {s.name: s for s in fresh.select({"type": ColumnDataSource}) if s.name}
             self._plans = plans
             self.view = self._BokehModel(fresh)
+            self.view._paced = self._lean
             self.widget.children = [self.view, self.note]
         self.timings = {"build_s": t1 - t0, "sync_s": time.perf_counter() - t1}
 
@@ -297,6 +299,7 @@ def _batching_bokeh_model(base: type) -> type:
 
     class BatchingBokehModel(base):  # type: ignore[misc, valid-type]
         _batch: list | None = None
+        _paced = True  # False for the former updates (LEAN_UPDATES off when the figure was made)
 
         def begin_batch(self) -> None:
             self._batch = []
@@ -308,12 +311,19 @@ def _batching_bokeh_model(base: type) -> type:
             from bokeh.protocol import Protocol
 
             msg = Protocol().create("PATCH-DOC", events)
-            self.send({"msg": "patch", "payload": msg.header_json})
-            self.send({"msg": "patch", "payload": msg.metadata_json})
-            self.send({"msg": "patch", "payload": msg.content_json})
+            parts = [({"msg": "patch", "payload": msg.header_json}, None)]
+            parts.append(({"msg": "patch", "payload": msg.metadata_json}, None))
+            parts.append(({"msg": "patch", "payload": msg.content_json}, None))
             for buffer in msg.buffers:
-                self.send({"msg": "patch", "payload": json.dumps(buffer.ref)})
-                self.send({"msg": "patch"}, [buffer.to_bytes()])
+                parts.append(({"msg": "patch", "payload": json.dumps(buffer.ref)}, None))
+                parts.append(({"msg": "patch"}, [buffer.to_bytes()]))
+
+            def send() -> None:
+                for content, buffers in parts:
+                    self.send(content, buffers)
+
+            # One figure per frame in the browser (patchpacer); the former updates at once.
+            send_paced(send, None if self._paced else 0.0)
 
         def _document_patched(self, event: Any) -> None:
             if self._batch is not None and event.setter is not self:
