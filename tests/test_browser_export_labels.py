@@ -22,11 +22,23 @@ EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 
 
 def _export_items(page, shot: Path) -> list[str]:
-    """The labels of the export submenu; ``shot`` gets a screenshot with the menu open."""
-    page.locator(".lm-MenuBar-itemLabel", has_text="File").first.click()
-    page.locator(".lm-Menu-itemLabel", has_text="Save and Export Notebook As").first.hover()
+    """The labels of the export submenu; ``shot`` gets a screenshot with the menu open. The
+    submenu stays empty (and does not open) until the front end has the server's formats, so
+    the menu is opened again until it shows them."""
+    from playwright.sync_api import TimeoutError as PlaywrightTimeout
+
     submenu = page.locator("#jp-mainmenu-file-notebookexport")
-    submenu.locator(".lm-Menu-itemLabel").first.wait_for(timeout=30_000)
+    for _attempt in range(6):
+        page.locator(".lm-MenuBar-itemLabel", has_text="File").first.click()
+        page.locator(".lm-Menu-itemLabel", has_text="Save and Export Notebook As").first.hover()
+        try:
+            submenu.locator(".lm-Menu-itemLabel").first.wait_for(timeout=10_000)
+            break
+        except PlaywrightTimeout:
+            page.keyboard.press("Escape")
+            page.keyboard.press("Escape")
+    else:
+        raise AssertionError("the export submenu did not open in six tries")
     labels = submenu.locator(".lm-Menu-itemLabel").all_inner_texts()
     shot.write_bytes(page.screenshot())
     page.keyboard.press("Escape")
@@ -35,34 +47,19 @@ def _export_items(page, shot: Path) -> list[str]:
 
 
 @pytest.mark.parametrize("app", ["lab", "notebook"])
-def test_the_export_menu_names_the_records_readably(app: str, tmp_path: Path) -> None:
-    from test_browser_lab import CHROMIUM, Server, _artefact, _launch
+def test_the_export_menu_names_the_records_readably(app: str, tmp_path: Path, jupyter_page) -> None:
+    from test_browser_lab import _artefact
 
-    if not Path(CHROMIUM).exists():
-        pytest.skip("chromium is not installed (CI installs Debian's chromium)")
-    sync_api = pytest.importorskip("playwright.sync_api")
     root = tmp_path / "study"
     root.mkdir()
     shutil.copy(EXAMPLES / "kestrel2-orbit-study.ipynb", root / "study.ipynb")
-    (tmp_path / "home").mkdir()
-    server = Server(app, root, tmp_path / "home")
     path = "lab/tree/study.ipynb" if app == "lab" else "notebooks/study.ipynb"
-    try:
-        with sync_api.sync_playwright() as p:
-            browser = _launch(p, tmp_path)
-            page = browser.pages[0] if browser.pages else browser.new_page()
-            try:
-                page.goto(server.url(path))
-                page.locator(".jp-Notebook").first.wait_for(timeout=60_000)
-                shot = tmp_path / f"{app}-export-menu.png"
-                labels = _export_items(page, shot)
-                if "Orbitrecord" in labels:  # the formats arrived after the first look
-                    labels = _export_items(page, shot)
-                _artefact(tmp_path, shot.name, shot.read_bytes())
-            finally:
-                browser.close()
-    finally:
-        server.stop()
+    with jupyter_page(app, path, root) as (page, _server):
+        shot = tmp_path / f"{app}-export-menu.png"
+        labels = _export_items(page, shot)
+        if "Orbitrecord" in labels:  # the formats arrived after the first look
+            labels = _export_items(page, shot)
+        _artefact(tmp_path, shot.name, shot.read_bytes())
     assert OrbitRecordExporter.export_from_notebook in labels
     assert OrbitRecordPDFExporter.export_from_notebook in labels
     assert not {"Orbitrecord", "Orbitrecord_pdf"} & set(labels)
