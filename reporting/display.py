@@ -23,7 +23,6 @@ is displayed, by one rule.
 from __future__ import annotations
 
 import math
-import re
 from datetime import datetime
 from typing import Any
 
@@ -41,7 +40,6 @@ __all__ = [
 _ANGLE_NOISE = {"deg": 1e-9, "rad": 1e-11, "arcsec": 1e-6}
 _FAR_YEARS = 3
 UNSET = "—"
-_ISO = re.compile(r"^(\d{4}-\d{2}-\d{2})T\d{2}:\d{2}:\d{2}(\.\d+)?Z$")
 
 
 def noise_floor(unit: str) -> float:
@@ -102,9 +100,8 @@ def display_value(value: Any, unit: str = "", built_utc: str | None = None) -> s
     if isinstance(value, float) and math.isfinite(value) and abs(value) <= noise_floor(unit):
         return "0"
     if isinstance(value, str) and built_utc:
-        found = _ISO.match(value)
-        if found and _beyond_years(value, built_utc, _FAR_YEARS):
-            return found.group(1)
+        if _beyond_years(value, built_utc, _FAR_YEARS):  # an instant (YYYY-MM-DDTHH:MM:SS[.f]Z)
+            return value[:10]
     return _plain(value)
 
 

@@ -225,3 +225,34 @@ def test_a_pass_record_is_built_in_one_place():
         ("orbitledger.kernel.passes", "build_passes", "Pass"),
         ("orbitledger.kernel.passes", "culminations", "refine_maxima"),
     }
+
+
+def test_one_iso_8601_grammar_for_epochs():
+    # Three grammars once disagreed on zone offsets (a case refused +01:00, the kernel shifted
+    # it, the records' display read it with datetime.fromisoformat). The grammar is
+    # kernel.timescales.ISO_DATE_TIME; the case's text goes through it and then refuses
+    # offsets. Any other regular expression spelling a date YYYY-MM-DD is a second grammar.
+    date_regex = re.compile(r"\\d\{4\}\)?-\(?(\?P<\w+>)?\\d\{2\}")
+    found = set()
+    for module, tree in TREES.items():
+        for node in ast.walk(tree):
+            if isinstance(node, ast.Constant) and isinstance(node.value, str):
+                if date_regex.search(node.value):
+                    found.add(module)
+    assert found == {"orbitledger.kernel.timescales"}
+
+
+def test_the_case_and_the_kernel_read_an_epoch_alike():
+    from orbitledger.case.utc import normalise_utc, utc_to_jd
+    from orbitledger.kernel.timescales import parse_utc
+
+    # The same instant, as a case writes it and as the kernel reads it (ERFA eraDtf2d, the
+    # quasi-JD of UTC); a zone offset the kernel shifts is refused by the case.
+    for text in ("2027-03-21T10:30:00Z", "2027-03-21t10:30:00.25z", "2016-12-31T23:59:60Z"):
+        kernel = tuple(float(x) for x in parse_utc(text))
+        assert utc_to_jd(normalise_utc(text)) == pytest.approx(kernel, abs=1e-12)
+    assert tuple(map(float, parse_utc("2027-03-21T11:30:00+01:00"))) == tuple(
+        map(float, parse_utc("2027-03-21T10:30:00Z"))
+    )
+    with pytest.raises(ValueError, match="zone offset"):
+        normalise_utc("2027-03-21T11:30:00+01:00")

@@ -8,10 +8,11 @@ normal form, so that two spellings of the same instant give the same case finger
 
 from __future__ import annotations
 
-import re
 import warnings
 
 import erfa
+
+from ..kernel.timescales import ISO_DATE_TIME, zone_offset_minutes
 
 __all__ = ["LAST_UTC_YEAR", "normalise_utc", "utc_to_jd", "utc_seconds_between"]
 
@@ -19,22 +20,24 @@ LAST_UTC_YEAR = 2099
 """The last year of an epoch or window start: ERFA's Earth ephemeris (eraEpv00, behind the
 Sun's position) is valid 1900-2100 AD, and the leap-second table is extrapolated long before."""
 
-_ISO_UTC = re.compile(
-    r"^(?P<y>\d{4})-(?P<mo>\d{2})-(?P<d>\d{2})[Tt ](?P<h>\d{2}):(?P<mi>\d{2})"
-    r"(?::(?P<s>\d{2})(?:\.(?P<f>\d{1,12}))?)?(?P<zone>[Zz]|[+-]\d{2}:?\d{2})?$"
-)
+_MAX_FRACTION_DIGITS = 12  # a picosecond: far below any case's need, and a bound on the text
 
 
 def _fields(text: str) -> tuple[int, int, int, int, int, float, str]:
+    """The calendar fields of a case's UTC text, read with the kernel's one ISO 8601 grammar
+    (``kernel.timescales.ISO_DATE_TIME``); a case also needs the time of day and UTC itself."""
     if not isinstance(text, str):
         raise ValueError("must be a UTC time as ISO 8601 text, e.g. '2027-03-21T10:30:00Z'")
-    match = _ISO_UTC.match(text.strip())
-    if not match:
+    match = ISO_DATE_TIME.match(text)
+    fraction_digits = match["f"] if match else None
+    bad_fraction = fraction_digits is not None and not (
+        0 < len(fraction_digits) <= _MAX_FRACTION_DIGITS
+    )
+    if not match or match["h"] is None or bad_fraction:
         raise ValueError("not an ISO 8601 UTC time; write it like '2027-03-21T10:30:00Z'")
-    zone = match["zone"]
-    if zone and zone.upper() != "Z" and zone.replace(":", "") not in ("+0000", "-0000"):
+    if zone_offset_minutes(match["zone"]):
         raise ValueError("give the time in UTC (suffix Z), not with a zone offset")
-    fraction = (match["f"] or "").rstrip("0")
+    fraction = (fraction_digits or "").rstrip("0")
     seconds = int(match["s"] or 0)
     return (
         int(match["y"]),

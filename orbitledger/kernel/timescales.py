@@ -47,11 +47,24 @@ EpochLike = Union[str, _dt.datetime, np.datetime64, Sequence[Any], np.ndarray, t
 # not depend on whether another library loaded its table first.
 _ANNOUNCED_UNTIL = _dt.date(2027, 6, 28)
 
-_ISO = re.compile(
-    r"^\s*(\d{4})-(\d{2})-(\d{2})(?:[T ](\d{2}):(\d{2})(?::(\d{2}(?:\.\d*)?))?)?"
-    r"\s*(Z|UTC|[+-]\d{2}:?\d{2})?\s*$",
+# The one ISO 8601 date-time grammar of the package (the case files' epochs go through it too,
+# orbitledger.case.utc, which then refuses zone offsets): a date, optionally a time to the
+# minute or second with a decimal fraction, and a zone (Z, UTC or +HH:MM / +HHMM).
+ISO_DATE_TIME = re.compile(
+    r"^\s*(?P<y>\d{4})-(?P<mo>\d{2})-(?P<d>\d{2})"
+    r"(?:[T ](?P<h>\d{2}):(?P<mi>\d{2})(?::(?P<s>\d{2})(?P<dot>\.(?P<f>\d*))?)?)?"
+    r"\s*(?P<zone>Z|UTC|[+-]\d{2}:?\d{2})?\s*$",
     re.IGNORECASE,
 )
+
+
+def zone_offset_minutes(zone: str | None) -> int:
+    """Minutes east of UTC of an ISO 8601 zone of :data:`ISO_DATE_TIME` (0 for none, Z, UTC)."""
+    if not zone or zone.upper() in ("Z", "UTC"):
+        return 0
+    sign = 1 if zone[0] == "+" else -1
+    digits = zone[1:].replace(":", "")
+    return sign * (int(digits[:2]) * 60 + int(digits[2:]))
 
 
 class LeapSecondExtrapolationWarning(UserWarning):
@@ -90,16 +103,14 @@ class TimeScales:
 
 
 def _parse_one(text: str, field: str) -> tuple[int, int, int, int, int, float]:
-    m = _ISO.match(text)
+    m = ISO_DATE_TIME.match(text)
     if not m:
         raise InputError(field, text, "is not an ISO 8601 date-time (e.g. 2027-03-21T10:30:00Z)")
-    y, mo, d, h, mi, s, zone = m.groups()
-    year, month, day = int(y), int(mo), int(d)
-    hour, minute, sec = int(h or 0), int(mi or 0), float(s or 0.0)
-    if zone and zone.upper() not in ("Z", "UTC"):
-        sign = 1 if zone[0] == "+" else -1
-        digits = zone[1:].replace(":", "")
-        offset_min = sign * (int(digits[:2]) * 60 + int(digits[2:]))
+    year, month, day = int(m["y"]), int(m["mo"]), int(m["d"])
+    hour, minute = int(m["h"] or 0), int(m["mi"] or 0)
+    sec = float((m["s"] or "0") + (m["dot"] or ""))
+    offset_min = zone_offset_minutes(m["zone"])
+    if offset_min:
         base = _dt.datetime(year, month, day, hour, minute) - _dt.timedelta(minutes=offset_min)
         year, month, day, hour, minute = base.year, base.month, base.day, base.hour, base.minute
     return year, month, day, hour, minute, sec
