@@ -55,6 +55,9 @@ def test_the_export_menu_names_the_records_readably(app: str, tmp_path: Path, ju
     shutil.copy(EXAMPLES / "kestrel2-orbit-study.ipynb", root / "study.ipynb")
     path = "lab/tree/study.ipynb" if app == "lab" else "notebooks/study.ipynb"
     with jupyter_page(app, path, root) as (page, _server):
+        # The kernel is up: the front end has loaded every plugin and asked for the formats.
+        idle = page.locator(".jp-Notebook-ExecutionIndicator[data-status='idle']")
+        idle.first.wait_for(state="attached", timeout=60_000)
         shot = tmp_path / f"{app}-export-menu.png"
         labels = _export_items(page, shot)
         if "Orbitrecord" in labels:  # the formats arrived after the first look
