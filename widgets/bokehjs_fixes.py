@@ -1,4 +1,4 @@
-"""Two page-side fixes that keep a live-figure update from blocking the browser.
+"""Four page-side fixes that keep a live-figure update from blocking the browser.
 
 Both were found by profiling the editor in JupyterLab (headless Chromium, CPU profile of an
 orbit edit on the starter case; benchmarks/bench_editor_frames.py) and run once per kernel,
@@ -25,9 +25,26 @@ after BokehJS is on the page (the editor's ``load_bokehjs``).
    element's values until the current task ends (the next ``setTimeout(0)``), so a paint reads
    each once; a style changed in a later task is read afresh.
 
-``window.__orbitledger_former_updates = true`` turns both off for the page (the side-by-side
-run of benchmarks/bench_editor_frames.py). Each fix checks that what it wraps is there and does nothing otherwise (another jupyter_bokeh
-or BokehJS): the figures then work as before, only slower. The script goes out in the display
+3. **Paint when seen.** An analyst types at the top of the form while the figures sit far
+   below, off screen; BokehJS still repainted every one of them on each update (layout, tick
+   labels, canvases: 15-45 ms a plot, five figures), and those paints were the long frames.
+   A plot inside an editor's figure box (``.ol-figure``) now keeps its paint request while
+   an ``IntersectionObserver`` says the box is more than half a view away, and paints as
+   soon as the box comes near (the request is kept, not dropped, so the figure always shows
+   the last update). The box itself has ``content-visibility: auto`` (widgets/style.py), so
+   the browser neither lays it out nor paints it while it is off screen.
+
+4. **One plot per frame.** When several plots of the editor must repaint at once (the
+   figures in view), each takes a frame of its own: the next waits for the next animation
+   frame, so no frame carries the five repaints of an orbit edit. Plots outside an editor
+   (a study's own figures) are painted as BokehJS does.
+
+Measured side by side in benchmarks/bench_editor_frames.py (former page vs current one).
+
+``window.__orbitledger_former_updates = true`` turns all four off for the page (the
+side-by-side run of benchmarks/bench_editor_frames.py). Each fix checks that what it wraps is
+there and does nothing otherwise (another jupyter_bokeh or BokehJS): the figures then work as
+before, only slower. The script goes out in the display
 type of BokehJS's own loader (``application/vnd.bokehjs_load.v0+json``, which jupyter_bokeh's
 renderer runs, so no trusted-JavaScript output is needed; records drop that type, like the
 loader itself).
@@ -39,6 +56,12 @@ __all__ = ["BOKEHJS_FIXES_JS", "install_bokehjs_fixes"]
 
 BOKEHJS_FIXES_JS = r"""
 (function () {
+  function figure_box(el) {
+    for (var n = el; n != null; n = n.parentNode || n.host) {
+      if (n.classList && n.classList.contains("ol-figure")) { return n; }
+    }
+    return null;
+  }
   function no_echo(B) {
     var proto = B.require("document").Document.prototype;
     if (proto.__orbitledger_no_echo || typeof proto.on_change !== "function") { return; }
@@ -80,11 +103,69 @@ BOKEHJS_FIXES_JS = r"""
     };
     proto.__orbitledger_style_cache = true;
   }
+  function paint_when_seen(B) {
+    var plots = B.require("models/plots/plot_canvas");
+    var proto = plots && plots.PlotView && plots.PlotView.prototype;
+    if (!proto || proto.__orbitledger_paint_when_seen || typeof proto.schedule_paint !== "function"
+        || typeof IntersectionObserver !== "function") {
+      return;
+    }
+    var schedule = proto.schedule_paint;
+    var seen = new WeakMap();     // an editor's figure box -> in or near the view
+    var waiting = new WeakMap();  // that box -> the plot views whose paint waits for it
+    var observer = new IntersectionObserver(function (entries) {
+      entries.forEach(function (entry) {
+        seen.set(entry.target, entry.isIntersecting);
+        var views = waiting.get(entry.target);
+        if (entry.isIntersecting && views) {
+          waiting.delete(entry.target);
+          views.forEach(function (view) { if (!view.is_destroyed) { schedule.call(view); } });
+        }
+      });
+    }, {rootMargin: "50% 0px"});
+    proto.schedule_paint = function () {
+      var box = this.el && this.el.isConnected ? figure_box(this.el) : null;
+      if (box === null || window.__orbitledger_former_updates) { return schedule.call(this); }
+      if (!seen.has(box)) { seen.set(box, true); observer.observe(box); }
+      if (seen.get(box)) { return schedule.call(this); }
+      var views = waiting.get(box);
+      if (views === undefined) { views = new Set(); waiting.set(box, views); }
+      views.add(this);
+    };
+    proto.__orbitledger_paint_when_seen = true;
+  }
+  function one_paint_per_frame(B) {
+    var plots = B.require("models/plots/plot_canvas");
+    var proto = plots && plots.PlotView && plots.PlotView.prototype;
+    if (!proto || proto.__orbitledger_one_paint || typeof proto.repaint !== "function") { return; }
+    var repaint = proto.repaint;
+    var painted = false;  // an editor's plot was painted in this frame
+    var queue = [];       // the editor's plots waiting for a frame of their own
+    function next_frame() {
+      painted = false;
+      var view = queue.shift();
+      if (view !== undefined && !view.is_destroyed) { view.repaint(); }
+    }
+    proto.repaint = function () {
+      var box = this.el && this.el.isConnected ? figure_box(this.el) : null;
+      if (box === null || window.__orbitledger_former_updates) { return repaint.call(this); }
+      if (painted) {
+        if (queue.indexOf(this) < 0) { queue.push(this); }
+        return;
+      }
+      painted = true;
+      requestAnimationFrame(next_frame);
+      return repaint.call(this);
+    };
+    proto.__orbitledger_one_paint = true;
+  }
   function install() {
     var B = window.Bokeh;
     if (B == null || typeof B.require !== "function") { return false; }
     try { no_echo(B); } catch (e) { console.warn("orbitledger: echo filter not installed", e); }
     try { one_style_read(B); } catch (e) { console.warn("orbitledger: style cache not installed", e); }
+    try { paint_when_seen(B); } catch (e) { console.warn("orbitledger: paint deferral not installed", e); }
+    try { one_paint_per_frame(B); } catch (e) { console.warn("orbitledger: paint pacing not installed", e); }
     return true;
   }
   if (!install()) {
