@@ -1,6 +1,6 @@
 """Four page-side fixes that keep a live-figure update from blocking the browser.
 
-Both were found by profiling the editor in JupyterLab (headless Chromium, CPU profile of an
+All four were found by profiling the editor in JupyterLab (headless Chromium, CPU profile of an
 orbit edit on the starter case; benchmarks/bench_editor_frames.py) and run once per kernel,
 after BokehJS is on the page (the editor's ``load_bokehjs``).
 
@@ -44,10 +44,9 @@ Measured side by side in benchmarks/bench_editor_frames.py (former page vs curre
 ``window.__orbitledger_former_updates = true`` turns all four off for the page (the
 side-by-side run of benchmarks/bench_editor_frames.py). Each fix checks that what it wraps is
 there and does nothing otherwise (another jupyter_bokeh or BokehJS): the figures then work as
-before, only slower. The script goes out in the display
-type of BokehJS's own loader (``application/vnd.bokehjs_load.v0+json``, which jupyter_bokeh's
-renderer runs, so no trusted-JavaScript output is needed; records drop that type, like the
-loader itself).
+before, only slower. The script goes out in the display type of BokehJS's own loader
+(``application/vnd.bokehjs_load.v0+json``, which jupyter_bokeh's renderer runs, so no
+trusted-JavaScript output is needed; records drop that type, like the loader itself).
 """
 
 from __future__ import annotations
