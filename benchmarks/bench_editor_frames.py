@@ -179,8 +179,7 @@ def run(edits: int) -> None:
         f"browser (JupyterLab, headless Chromium, starter case, {edits} edits of orbit.e each,"
         " interleaved):"
     )
-    for where, kind in samples:
-        got = samples[(where, kind)]
+    for (where, kind), got in samples.items():
         e_med, e_p90 = median_p90_s(got["enter"])
         g_med, g_p90 = median_p90_s(got["gap"])
         up_med, _ = median_p90_s([float(b) for b in got["up"]])

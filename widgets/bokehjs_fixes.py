@@ -55,11 +55,20 @@ __all__ = ["BOKEHJS_FIXES_JS", "install_bokehjs_fixes"]
 
 BOKEHJS_FIXES_JS = r"""
 (function () {
-  function figure_box(el) {
-    for (var n = el; n != null; n = n.parentNode || n.host) {
-      if (n.classList && n.classList.contains("ol-figure")) { return n; }
+  // The editor's figure box (.ol-figure) a plot view is drawn in, found once per view (up
+  // through the shadow roots BokehJS draws in); null for a plot outside an editor, and for
+  // every plot while the former updates are asked for.
+  var boxes = new WeakMap();
+  function editor_box(view) {
+    if (window.__orbitledger_former_updates) { return null; }
+    var box = boxes.get(view);
+    if (box !== undefined || view.el == null || !view.el.isConnected) { return box || null; }
+    box = null;
+    for (var n = view.el; n != null && box === null; n = n.parentNode || n.host) {
+      if (n.classList && n.classList.contains("ol-figure")) { box = n; }
     }
-    return null;
+    boxes.set(view, box);
+    return box;
   }
   function no_echo(B) {
     var proto = B.require("document").Document.prototype;
@@ -123,8 +132,8 @@ BOKEHJS_FIXES_JS = r"""
       });
     }, {rootMargin: "50% 0px"});
     proto.schedule_paint = function () {
-      var box = this.el && this.el.isConnected ? figure_box(this.el) : null;
-      if (box === null || window.__orbitledger_former_updates) { return schedule.call(this); }
+      var box = editor_box(this);
+      if (box === null) { return schedule.call(this); }
       if (!seen.has(box)) { seen.set(box, true); observer.observe(box); }
       if (seen.get(box)) { return schedule.call(this); }
       var views = waiting.get(box);
@@ -146,8 +155,7 @@ BOKEHJS_FIXES_JS = r"""
       if (view !== undefined && !view.is_destroyed) { view.repaint(); }
     }
     proto.repaint = function () {
-      var box = this.el && this.el.isConnected ? figure_box(this.el) : null;
-      if (box === null || window.__orbitledger_former_updates) { return repaint.call(this); }
+      if (editor_box(this) === null) { return repaint.call(this); }
       if (painted) {
         if (queue.indexOf(this) < 0) { queue.push(this); }
         return;

@@ -108,11 +108,11 @@ CSS = """
 .ol-job { align-items: center; }
 .ol-job .widget-label { color: var(--ol-muted); }
 .ol-figures { flex-wrap: wrap; }
-.ol-figure { margin: 4px 8px 4px 0; }
 /* A figure off screen is neither laid out nor painted (CSS Containment Level 2,
    content-visibility): the figures sit below the form, so an edit typed at the top repaints
    only what is in view. "auto" keeps each figure's last drawn size while it is skipped. */
-.ol-figure { content-visibility: auto; contain-intrinsic-size: auto 760px auto 520px; }
+.ol-figure { margin: 4px 8px 4px 0;
+  content-visibility: auto; contain-intrinsic-size: auto 760px auto 520px; }
 """
 
 
